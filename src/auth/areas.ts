@@ -1,0 +1,62 @@
+// The areas of the app and the tasks a user can start, each guarded by one ability check.
+// Navigation and the home page are derived from these tables and the user's ability,
+// never from role names: a role sees an area exactly when shared/abilities.ts lets it.
+import type { AppAbility } from '../../shared/abilities';
+
+type CanArgs = Parameters<AppAbility['can']>;
+export type AbilityAction = CanArgs[0];
+export type AbilitySubject = CanArgs[1];
+
+export type Area = {
+  to: string;
+  label: string;
+  action: AbilityAction;
+  subject: AbilitySubject;
+};
+
+/** Navigation entries, in display order. Home is always present for a signed-in user. */
+export const AREAS: Area[] = [
+  { to: '/admin/users', label: 'Users', action: 'read', subject: 'User' },
+  { to: '/account', label: 'Account', action: 'read', subject: 'Account' },
+];
+
+export type Task = {
+  to: string;
+  title: string;
+  description: string;
+  action: AbilityAction;
+  subject: AbilitySubject;
+};
+
+/** What a user can do now; the home page lists those the ability allows. */
+export const TASKS: Task[] = [
+  {
+    to: '/admin/users#new-user',
+    title: 'Invite a colleague',
+    description: 'Create an account and send a one-time invitation link, with the role they need.',
+    action: 'create',
+    subject: 'User',
+  },
+  {
+    to: '/admin/users',
+    title: 'Manage users and roles',
+    description: 'See who has access, change roles, and deactivate or reactivate accounts.',
+    action: 'update',
+    subject: 'User',
+  },
+  {
+    to: '/account',
+    title: 'Change your password',
+    description: 'Set a new password of at least 12 characters for your own sign-in.',
+    action: 'update',
+    subject: 'Account',
+  },
+];
+
+export function allowedAreas(ability: AppAbility): Area[] {
+  return AREAS.filter((a) => ability.can(a.action, a.subject));
+}
+
+export function allowedTasks(ability: AppAbility): Task[] {
+  return TASKS.filter((t) => ability.can(t.action, t.subject));
+}

@@ -1,0 +1,38 @@
+// The route table of the client (React Router 7 data router).
+import { createBrowserRouter } from 'react-router';
+import { RequireAbility, RequireSignIn } from './auth/guards';
+import { AppShell } from './components/AppShell';
+import { RouteError } from './components/RouteError';
+import { AccountPage } from './pages/account/AccountPage';
+import { UsersPage } from './pages/admin/UsersPage';
+import { HomePage } from './pages/home/HomePage';
+import { InvitePage } from './pages/invite/InvitePage';
+import { NotFoundPage } from './pages/NotFoundPage';
+import { SignInPage } from './pages/signin/SignInPage';
+
+export const router = createBrowserRouter([
+  {
+    element: <AppShell />,
+    errorElement: <RouteError />,
+    children: [
+      { path: 'sign-in', element: <SignInPage /> },
+      { path: 'invite/:token', element: <InvitePage /> },
+      {
+        element: <RequireSignIn />,
+        children: [
+          { index: true, element: <HomePage /> },
+          { path: 'account', element: <AccountPage /> },
+          {
+            path: 'admin/users',
+            element: (
+              <RequireAbility action="read" subject="User">
+                <UsersPage />
+              </RequireAbility>
+            ),
+          },
+        ],
+      },
+      { path: '*', element: <NotFoundPage /> },
+    ],
+  },
+]);
