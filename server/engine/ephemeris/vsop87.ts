@@ -1,0 +1,124 @@
+/**
+ * Full VSOP87 version B (Bretagnon & Francou 1988, A&A 202, 309) as shipped by astronomia 4.2.0:
+ * heliocentric spherical coordinates L, B, R referred to the dynamical ecliptic and equinox J2000 of VSOP87.
+ * In VSOP87 versions A–E the "Earth" is the Earth itself, not the Earth–Moon barycentre (the EMB is a
+ * separate body of version A and of the main version), so no EMB split is needed here.
+ *
+ * Evaluated with analytic time derivatives (each term A·cos(B + Cτ) differentiates to −A·C·sin(B + Cτ)),
+ * so velocities come out of the series exactly, not by finite differences.
+ */
+import mercury from 'astronomia/data/vsop87Bmercury';
+import venus from 'astronomia/data/vsop87Bvenus';
+import earth from 'astronomia/data/vsop87Bearth';
+import mars from 'astronomia/data/vsop87Bmars';
+import jupiter from 'astronomia/data/vsop87Bjupiter';
+import saturn from 'astronomia/data/vsop87Bsaturn';
+import uranus from 'astronomia/data/vsop87Buranus';
+import neptune from 'astronomia/data/vsop87Bneptune';
+
+export type Vsop87Planet = 'mercury' | 'venus' | 'earth' | 'mars' | 'jupiter' | 'saturn' | 'uranus' | 'neptune';
+
+/** Days per Julian millennium: VSOP87's time unit. */
+const DAYS_PER_MILLENNIUM = 365_250;
+
+/** One coordinate (L, B or R): per power α of τ, flat triples [A, B, C]. */
+type PackedVariable = Float64Array[];
+type PackedPlanet = { L: PackedVariable; B: PackedVariable; R: PackedVariable; termCount: number };
+
+function packVariable(v: Record<string, number[][]>): PackedVariable {
+  const powers = Object.keys(v)
+    .map(Number)
+    .sort((a, b) => a - b);
+  const out: PackedVariable = [];
+  for (const p of powers) {
+    if (p !== out.length) throw new Error(`VSOP87 data: missing power ${out.length}`);
+    const rows = v[String(p)];
+    const arr = new Float64Array(rows.length * 3);
+    rows.forEach((r, i) => {
+      arr[3 * i] = r[0];
+      arr[3 * i + 1] = r[1];
+      arr[3 * i + 2] = r[2];
+    });
+    out.push(arr);
+  }
+  return out;
+}
+
+const RAW: Record<Vsop87Planet, AstronomiaVsop87Data> = { mercury, venus, earth, mars, jupiter, saturn, uranus, neptune };
+const PACKED = new Map<Vsop87Planet, PackedPlanet>();
+
+function packed(planet: Vsop87Planet): PackedPlanet {
+  let p = PACKED.get(planet);
+  if (!p) {
+    const raw = RAW[planet];
+    const L = packVariable(raw.L);
+    const B = packVariable(raw.B);
+    const R = packVariable(raw.R);
+    const termCount = [...L, ...B, ...R].reduce((s, a) => s + a.length / 3, 0);
+    p = { L, B, R, termCount };
+    PACKED.set(planet, p);
+  }
+  return p;
+}
+
+/** Number of periodic terms in the series of one planet (for provenance and benchmarks). */
+export function vsop87TermCount(planet: Vsop87Planet): number {
+  return packed(planet).termCount;
+}
+
+/** Evaluates Σ_α τ^α Σ A cos(B + Cτ) and its τ-derivative; returns [value, d/dτ]. */
+function evalVariable(v: PackedVariable, tau: number, out: Float64Array, k: number): void {
+  let value = 0;
+  let deriv = 0;
+  let tauPow = 1; // τ^α
+  let tauPowM1 = 0; // α·τ^(α−1)
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    const arr = v[alpha];
+    let s = 0;
+    let ds = 0;
+    for (let i = 0; i < arr.length; i += 3) {
+      const a = arr[i];
+      const c = arr[i + 2];
+      const phase = arr[i + 1] + c * tau;
+      s += a * Math.cos(phase);
+      ds -= a * c * Math.sin(phase);
+    }
+    value += tauPow * s;
+    deriv += tauPowM1 * s + tauPow * ds;
+    tauPowM1 = (alpha + 1) * tauPow;
+    tauPow *= tau;
+  }
+  out[k] = value;
+  out[k + 1] = deriv;
+}
+
+const scratch = new Float64Array(6);
+
+/**
+ * Heliocentric state of a planet in the VSOP87 frame (dynamical ecliptic and equinox J2000), rectangular,
+ * AU and AU/day, at `tdbDays` (TDB days from J2000.0). Writes x, y, z, vx, vy, vz into `out`.
+ */
+export function vsop87StateInto(planet: Vsop87Planet, tdbDays: number, out: Float64Array | number[]): void {
+  const p = packed(planet);
+  const tau = tdbDays / DAYS_PER_MILLENNIUM;
+  evalVariable(p.L, tau, scratch, 0);
+  evalVariable(p.B, tau, scratch, 2);
+  evalVariable(p.R, tau, scratch, 4);
+  const L = scratch[0];
+  const B = scratch[2];
+  const R = scratch[4];
+  // per day
+  const dL = scratch[1] / DAYS_PER_MILLENNIUM;
+  const dB = scratch[3] / DAYS_PER_MILLENNIUM;
+  const dR = scratch[5] / DAYS_PER_MILLENNIUM;
+  const cL = Math.cos(L);
+  const sL = Math.sin(L);
+  const cB = Math.cos(B);
+  const sB = Math.sin(B);
+  out[0] = R * cB * cL;
+  out[1] = R * cB * sL;
+  out[2] = R * sB;
+  out[3] = dR * cB * cL - R * sB * dB * cL - R * cB * sL * dL;
+  out[4] = dR * cB * sL - R * sB * dB * sL + R * cB * cL * dL;
+  out[5] = dR * sB + R * cB * dB;
+}
