@@ -1,0 +1,4 @@
+export * from './matrix';
+export * from './cholesky';
+export * from './eigen';
+export * from './covariance';
