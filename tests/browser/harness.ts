@@ -1,0 +1,184 @@
+// Shared set-up for the browser tests: build the client once when it is stale, start a test
+// server (tests/helpers/testServer.ts), and drive Debian's Chromium through playwright-core.
+import { existsSync, mkdirSync, openSync, closeSync, readdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+
+export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+export const CLIENT_DIR = path.join(ROOT, 'dist/client');
+export const CHROMIUM_PATH = '/usr/bin/chromium';
+export const SHOTS_DIR = '/tmp/shots';
+
+/** The client bundle also contains ./shared (abilities, roles, schemas): a change there needs a rebuild too. */
+const CLIENT_INPUTS = ['src', 'shared', 'index.html', 'vite.config.ts'];
+
+function newestMtimeMs(p: string): number {
+  if (!existsSync(p)) return 0;
+  const st = statSync(p);
+  if (!st.isDirectory()) return st.mtimeMs;
+  let newest = st.mtimeMs;
+  for (const entry of readdirSync(p)) newest = Math.max(newest, newestMtimeMs(path.join(p, entry)));
+  return newest;
+}
+
+/** True when dist/client is missing or older than any client input. */
+export function clientIsStale(): boolean {
+  const built = path.join(CLIENT_DIR, 'index.html');
+  if (!existsSync(built)) return true;
+  const builtAt = statSync(built).mtimeMs;
+  return CLIENT_INPUTS.some((p) => newestMtimeMs(path.join(ROOT, p)) > builtAt);
+}
+
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+
+/**
+ * Build the client with Vite's build() API when it is stale. Safe when several test files (each
+ * in its own process) call it at once: an exclusive lock file serialises builds, the staleness
+ * check is repeated under the lock, and the new bundle is built beside dist/client and swapped in
+ * by rename so a server already serving the old bundle never sees a half-written folder.
+ */
+export async function ensureClientBuilt(): Promise<void> {
+  if (!clientIsStale()) return;
+  mkdirSync(path.join(ROOT, 'dist'), { recursive: true });
+  const lock = path.join(ROOT, 'dist/.client-build.lock');
+  const started = Date.now();
+  for (;;) {
+    try {
+      closeSync(openSync(lock, 'wx'));
+      break;
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+      // A lock older than 3 minutes belongs to a build that died: take it over.
+      try {
+        if (Date.now() - statSync(lock).mtimeMs > 180_000) rmSync(lock, { force: true });
+      } catch {
+        /* removed meanwhile */
+      }
+      if (Date.now() - started > 240_000) throw new Error(`Timed out waiting for the client build lock ${lock}`);
+      await sleep(250);
+    }
+  }
+  try {
+    writeFileSync(lock, String(process.pid));
+    if (!clientIsStale()) return; // another test file built it while we waited
+    const { build } = await import('vite');
+    const tmp = path.join(ROOT, `dist/client.tmp-${process.pid}`);
+    await build({
+      root: ROOT,
+      configFile: path.join(ROOT, 'vite.config.ts'),
+      logLevel: 'warn',
+      build: { outDir: tmp, emptyOutDir: true },
+    });
+    const old = path.join(ROOT, `dist/client.old-${process.pid}`);
+    if (existsSync(CLIENT_DIR)) renameSync(CLIENT_DIR, old);
+    renameSync(tmp, CLIENT_DIR);
+    rmSync(old, { recursive: true, force: true });
+  } finally {
+    rmSync(lock, { force: true });
+  }
+}
+
+/** Launch Debian's Chromium headless. Fails (never skips) with a clear message when it is missing. */
+export async function launchBrowser(): Promise<Browser> {
+  if (!existsSync(CHROMIUM_PATH)) {
+    throw new Error(
+      `Browser tests need Debian's Chromium at ${CHROMIUM_PATH}, which is missing. ` +
+        'Install it with `sudo apt-get install -y chromium` (npm test does this itself when run as root).',
+    );
+  }
+  // playwright-core's launch() gives every browser a fresh temporary user-data-dir of its own.
+  return chromium.launch({
+    executablePath: CHROMIUM_PATH,
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  });
+}
+
+/** A fresh context (own cookies) with a desktop-sized viewport and the server as base URL. */
+export async function newContext(browser: Browser, baseURL: string, viewport = { width: 1280, height: 860 }): Promise<BrowserContext> {
+  const context = await browser.newContext({ baseURL, viewport, locale: 'en-GB', timezoneId: 'UTC' });
+  context.setDefaultTimeout(10_000);
+  return context;
+}
+
+export const DEMO_ROLES = ['admin', 'analyst', 'reviewer', 'communications', 'liaison'] as const;
+export type DemoRole = (typeof DEMO_ROLES)[number];
+
+/** Demo sign-ins as agreed in the foundation contract: <role>@hspdo.example / tocsin-<role>-demo. */
+export function demoCredentials(role: DemoRole): { email: string; password: string } {
+  return { email: `${role}@hspdo.example`, password: `tocsin-${role}-demo` };
+}
+
+export async function signIn(page: Page, email: string, password: string): Promise<void> {
+  await page.goto('/sign-in');
+  await page.getByLabel('E-mail address').fill(email);
+  await page.getByLabel('Password', { exact: true }).fill(password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** The labels of the main navigation, in order. */
+export async function navLabels(page: Page): Promise<string[]> {
+  const links = page.getByRole('navigation', { name: 'Main' }).getByRole('link');
+  return (await links.allTextContents()).map((s) => s.trim());
+}
+
+export async function signOut(page: Page): Promise<void> {
+  await page.getByRole('button', { name: 'Sign out' }).click();
+  await page.waitForURL('**/sign-in');
+}
+
+export async function screenshot(page: Page, name: string): Promise<string> {
+  mkdirSync(SHOTS_DIR, { recursive: true });
+  const file = path.join(SHOTS_DIR, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: true });
+  return file;
+}
+
+/** Collects uncaught page errors and console errors so a test can assert there were none. */
+export function watchPageErrors(page: Page): string[] {
+  const errors: string[] = [];
+  page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
+  page.on('console', (m) => {
+    // Chromium logs every 4xx answer as a console error; a 401 is the expected answer to
+    // GET /api/session when signed out and to a wrong password, so those are not faults.
+    if (m.type() === 'error' && !/status of 401/.test(m.text())) errors.push(`console: ${m.text()}`);
+  });
+  return errors;
+}
+
+/** The text of the page's main heading, once there is exactly one h1 in the main landmark. */
+export async function mainHeading(page: Page): Promise<string> {
+  const h1 = page.locator('main h1');
+  await h1.first().waitFor({ state: 'visible' });
+  return ((await h1.first().textContent()) ?? '').trim();
+}
+
+/** Wait until the main heading reads `text` (polling), and return it for an assertion. */
+export async function waitForHeading(page: Page, text: string | RegExp, timeoutMs = 10_000): Promise<string> {
+  const deadline = Date.now() + timeoutMs;
+  let last = '';
+  while (Date.now() < deadline) {
+    last = await mainHeading(page).catch(() => '');
+    if (typeof text === 'string' ? last === text : text.test(last)) return last;
+    await sleep(50);
+  }
+  return last;
+}
+
+export async function isVisible(locator: import('playwright-core').Locator): Promise<boolean> {
+  try {
+    await locator.waitFor({ state: 'visible' });
+    return true;
+  } catch {
+    return false;
+  }
+}
