@@ -1,0 +1,25 @@
+// All services of the app, built once per app instance from the database, config and mail transport.
+import type { Transporter } from 'nodemailer';
+import type { Config } from '../config';
+import type { Db } from '../db/client';
+import { createAuthService } from './auth';
+import { createInvitationService } from './invitations';
+import { createMailService } from './mail';
+import { SqliteSessionStore } from './sessionStore';
+import { createUserService } from './users';
+
+export interface ServiceDeps {
+  db: Db;
+  config: Config;
+  mailTransport: Transporter;
+}
+
+export function createServices({ db, config, mailTransport }: ServiceDeps) {
+  const sessionStore = new SqliteSessionStore(db, config.session);
+  const mail = createMailService(db, mailTransport, config.mailFrom);
+  const invitations = createInvitationService(db, mail, config.publicUrl);
+  const auth = createAuthService(db, sessionStore);
+  const users = createUserService(db, sessionStore, invitations);
+  return { db, config, sessionStore, mail, invitations, auth, users };
+}
+export type Services = ReturnType<typeof createServices>;

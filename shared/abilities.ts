@@ -1,0 +1,99 @@
+// The single permission definition of Tocsin. The server enforces it on every /api route
+// (server/middleware/authorize.ts, driven by shared/routes.ts) and the client uses the same
+// rules (sent by GET /api/session) to show only what a user may do.
+//
+// Adding a resource in a later issue: add its subject name to SUBJECTS, its rules below,
+// and its routes to shared/routes.ts. A route without a matching rule is refused.
+import { AbilityBuilder, createMongoAbility, type ForcedSubject, type MongoAbility, type MongoQuery, type RawRuleOf } from '@casl/ability';
+import type { Role } from './roles';
+
+export const ACTIONS = [
+  'manage', // CASL's wildcard: every action
+  'read',
+  'create',
+  'update',
+  'delete',
+  // domain verbs used by later issues
+  'run',
+  'review',
+  'approve',
+  'publish',
+  'acknowledge',
+] as const;
+export type Action = (typeof ACTIONS)[number];
+
+export const SUBJECTS = [
+  'all', // CASL's wildcard: every subject
+  'User',
+  'Account',
+  'Health',
+  // reserved for later issues
+  'TrackedObject',
+  'Solution',
+  'Run',
+  'Bulletin',
+  'StakeholderList',
+  'Distribution',
+  'Briefing',
+  'Release',
+  'Observatory',
+] as const;
+export type SubjectName = (typeof SUBJECTS)[number];
+
+/** A subject is either a type name or a plain object tagged with one (CASL's `subject(type, obj)`). */
+type TaggedSubject = { [K in Exclude<SubjectName, 'all'>]: ForcedSubject<K> & Record<string, any> }[Exclude<SubjectName, 'all'>];
+export type AppSubject = SubjectName | TaggedSubject;
+export type AppAbility = MongoAbility<[Action, AppSubject], MongoQuery>;
+export type AppRule = RawRuleOf<AppAbility>;
+
+export interface AbilityUser {
+  id: number;
+  role: Role;
+}
+
+/**
+ * Build the ability of a user (or of an anonymous visitor when `user` is null).
+ * Anonymous visitors get no rules at all: public routes are marked `public` in shared/routes.ts.
+ */
+export function defineAbilityFor(user: AbilityUser | null): AppAbility {
+  const { can, build } = new AbilityBuilder<AppAbility>(createMongoAbility);
+  if (!user) return build();
+
+  // Everyone signed in: their own account, the health check, and the internal assessment record.
+  can(['read', 'update'], 'Account', { id: user.id });
+  can('read', 'Health');
+  can('read', ['TrackedObject', 'Solution', 'Run', 'Bulletin', 'Release']);
+
+  switch (user.role) {
+    case 'admin':
+      can('manage', 'User');
+      can('manage', ['StakeholderList', 'Observatory']);
+      break;
+    case 'analyst':
+      can(['create', 'update'], ['TrackedObject', 'Solution']);
+      can(['create', 'run'], 'Run');
+      can(['create', 'update'], 'Bulletin');
+      can('read', 'Observatory');
+      break;
+    case 'reviewer':
+      can(['review', 'approve'], 'Bulletin');
+      can('review', 'Run');
+      can('read', 'Observatory');
+      break;
+    case 'communications':
+      can(['create', 'update', 'publish'], 'Release');
+      can('publish', 'Bulletin');
+      can('read', ['StakeholderList', 'Distribution']);
+      can(['create', 'update'], 'Distribution');
+      break;
+    case 'liaison':
+      can(['read', 'acknowledge'], 'Briefing');
+      break;
+  }
+  return build();
+}
+
+/** Rebuild an ability from the raw rules the server sent (used by the client). */
+export function abilityFromRules(rules: AppRule[]): AppAbility {
+  return createMongoAbility<AppAbility>(rules);
+}

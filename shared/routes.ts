@@ -1,0 +1,67 @@
+// Every /api route of Tocsin, with the ability it needs. The server's authorization middleware
+// looks each request up here: a request matching no entry is answered 404 before any handler
+// runs, a non-public entry needs a signed-in user (401) whose ability allows `action` on
+// `subject` (403). So a handler cannot be reached without an entry here (deny by default).
+// The API test walks this table for every role, and the client may use it to decide what to show.
+import type { Action, SubjectName } from './abilities';
+
+export type HttpMethod = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+
+export interface RouteDef {
+  method: HttpMethod;
+  /** Express-style path; `:name` matches one path segment. */
+  path: string;
+  action: Action;
+  subject: SubjectName;
+  /** Reachable without signing in (the ability is not consulted). */
+  public?: boolean;
+  /** What the route is for (documentation only). */
+  summary: string;
+}
+
+export const ROUTES = [
+  { method: 'GET', path: '/api/health', action: 'read', subject: 'Health', public: true, summary: 'Liveness and version' },
+  { method: 'GET', path: '/api/csrf', action: 'read', subject: 'Health', public: true, summary: 'CSRF token (sets the CSRF cookie)' },
+
+  { method: 'POST', path: '/api/session', action: 'create', subject: 'Account', public: true, summary: 'Sign in' },
+  { method: 'GET', path: '/api/session', action: 'read', subject: 'Account', summary: 'The signed-in user and their rules' },
+  { method: 'DELETE', path: '/api/session', action: 'delete', subject: 'Account', public: true, summary: 'Sign out (idempotent)' },
+
+  { method: 'PUT', path: '/api/account/password', action: 'update', subject: 'Account', summary: 'Change own password' },
+
+  { method: 'GET', path: '/api/users', action: 'read', subject: 'User', summary: 'List users' },
+  { method: 'POST', path: '/api/users', action: 'create', subject: 'User', summary: 'Create a user (invites by e-mail when no password is given)' },
+  { method: 'GET', path: '/api/users/:id', action: 'read', subject: 'User', summary: 'One user' },
+  { method: 'PATCH', path: '/api/users/:id', action: 'update', subject: 'User', summary: 'Rename, change role, (de)activate' },
+  { method: 'POST', path: '/api/users/:id/invitation', action: 'update', subject: 'User', summary: 'Send a fresh invitation e-mail' },
+
+  { method: 'GET', path: '/api/invitations/:token', action: 'read', subject: 'Account', public: true, summary: 'Look up an invitation' },
+  { method: 'POST', path: '/api/invitations/:token', action: 'update', subject: 'Account', public: true, summary: 'Accept an invitation by choosing a password' },
+] as const satisfies readonly RouteDef[];
+
+interface CompiledRoute {
+  def: RouteDef;
+  pattern: RegExp;
+}
+
+function compile(path: string): RegExp {
+  const source = path
+    .split('/')
+    .map((segment) => (segment.startsWith(':') ? '[^/]+' : segment.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')))
+    .join('/');
+  return new RegExp(`^${source}/?$`);
+}
+
+const COMPILED: CompiledRoute[] = (ROUTES as readonly RouteDef[]).map((def) => ({ def, pattern: compile(def.path) }));
+
+/** The table entry for a request, or undefined. `path` is the URL path without the query string. */
+export function findRoute(method: string, path: string): RouteDef | undefined {
+  const upper = method.toUpperCase();
+  const m = upper === 'HEAD' ? 'GET' : upper;
+  return COMPILED.find((r) => r.def.method === m && r.pattern.test(path))?.def;
+}
+
+/** Whether any entry has this path (whatever the method). */
+export function pathIsKnown(path: string): boolean {
+  return COMPILED.some((r) => r.pattern.test(path));
+}

@@ -1,0 +1,154 @@
+// Starts a complete Tocsin server for API and browser tests: a fresh temporary SQLite file,
+// migrations, the demo seed (unless seed:false), mail to an in-process SMTP fake, listening on
+// 127.0.0.1 with a free port, serving dist/client when it has been built.
+//
+//   const srv = await startTestServer();
+//   await fetch(`${srv.url}/api/health`);
+//   const mails = await srv.mail.messages();
+//   await srv.close();
+import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { simpleParser } from 'mailparser';
+import nodemailer from 'nodemailer';
+import { SMTPServer } from 'smtp-server';
+import { buildApp } from '../../server/app';
+import { loadConfig, type Config } from '../../server/config';
+import { closeDb, openDb, type Db } from '../../server/db/client';
+import { runMigrations } from '../../server/db/migrate';
+import { DEMO_USERS, seed as seedDemo } from '../../server/db/seed';
+import type { Services } from '../../server/services';
+
+export { DEMO_USERS };
+
+export interface TestMail {
+  from: string;
+  to: string[];
+  subject: string;
+  text: string;
+  html: string;
+  date: Date;
+}
+
+export interface TestServer {
+  url: string;
+  db: Db;
+  /** Path of the temporary SQLite file. */
+  databaseFile: string;
+  config: Config;
+  services: Services;
+  mail: {
+    /** Every message received so far, oldest first. */
+    messages(): Promise<TestMail[]>;
+    /** Wait (up to timeoutMs) for a message to this address and return the newest one. */
+    waitFor(to: string, timeoutMs?: number): Promise<TestMail>;
+    clear(): void;
+  };
+  close(): Promise<void>;
+}
+
+export interface TestServerOptions {
+  /** Seed the demo office and users (default true). */
+  seed?: boolean;
+  /** Override configuration (e.g. a small sign-in rate limit). */
+  config?: Partial<Config>;
+  /** Serve the built client from this folder (default dist/client when it exists). */
+  clientDir?: string;
+}
+
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+
+/** An SMTP server in this process that keeps every message it receives. */
+export async function startSmtpFake(): Promise<{ port: number; messages(): Promise<TestMail[]>; clear(): void; close(): Promise<void> }> {
+  let pending: Promise<TestMail>[] = [];
+  const server = new SMTPServer({
+    authOptional: true,
+    disabledCommands: ['AUTH', 'STARTTLS'],
+    logger: false,
+    onData(stream, sessionInfo, callback) {
+      const to = sessionInfo.envelope.rcptTo.map((r) => r.address);
+      const parsed = simpleParser(stream).then((m) => ({
+        from: m.from?.text ?? '',
+        to,
+        subject: m.subject ?? '',
+        text: m.text ?? '',
+        html: typeof m.html === 'string' ? m.html : '',
+        date: m.date ?? new Date(),
+      }));
+      pending.push(parsed);
+      parsed.then(() => callback(), (err) => callback(err as Error));
+    },
+  });
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(0, '127.0.0.1', () => resolve());
+  });
+  const port = (server.server.address() as AddressInfo).port;
+  return {
+    port,
+    messages: () => Promise.all(pending),
+    clear: () => {
+      pending = [];
+    },
+    close: () => new Promise<void>((resolve) => server.close(() => resolve())),
+  };
+}
+
+export async function startTestServer(opts: TestServerOptions = {}): Promise<TestServer> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tocsin-test-'));
+  const databaseFile = path.join(dir, 'tocsin.sqlite');
+  const db = openDb(databaseFile);
+  runMigrations(db);
+  if (opts.seed !== false) await seedDemo(db);
+
+  const smtp = await startSmtpFake();
+  const mailTransport = nodemailer.createTransport({ host: '127.0.0.1', port: smtp.port, secure: false, ignoreTLS: true });
+
+  // Listen first so the public URL (used in invitation links) is known before the app is built.
+  const server = http.createServer();
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+  const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+
+  const config: Config = {
+    ...loadConfig({ NODE_ENV: 'test', SESSION_SECRET: 'test-session-secret-0123456789abcdef' }),
+    databaseFile,
+    publicUrl: url,
+    ...opts.config,
+  };
+  const clientDir = opts.clientDir ?? path.join(ROOT, 'dist/client');
+  const { app, services } = buildApp({ db, config, mailTransport, clientDir, logError: (err) => console.error('[test server]', err) });
+  server.on('request', app);
+
+  const messages = smtp.messages;
+  return {
+    url,
+    db,
+    databaseFile,
+    config,
+    services,
+    mail: {
+      messages,
+      clear: smtp.clear,
+      async waitFor(to, timeoutMs = 5000) {
+        const until = Date.now() + timeoutMs;
+        for (;;) {
+          const found = (await messages()).filter((m) => m.to.includes(to.toLowerCase()));
+          if (found.length) return found[found.length - 1];
+          if (Date.now() > until) throw new Error(`No e-mail to ${to} within ${timeoutMs} ms`);
+          await new Promise((r) => setTimeout(r, 50));
+        }
+      },
+    },
+    async close() {
+      server.closeAllConnections();
+      await new Promise<void>((resolve) => server.close(() => resolve()));
+      mailTransport.close();
+      await smtp.close();
+      closeDb(db);
+      fs.rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
