@@ -11,7 +11,7 @@
  * again by tests/unit/engine-ephemeris.test.ts (cache vs series) and bench/ephemeris.ts.
  */
 import { EPHEMERIS_BODIES, EARTH_INDEX, MOON_INDEX } from './bodies';
-import { moonGeocentricStateInto, seriesStateInto } from './series';
+import { moonGeocentricStateInto, seriesPositionInto } from './series';
 import { ELP_DATA_NAME } from './elpmpp02';
 import { FRAME_TIE_DESCRIPTION } from './frame-tie';
 
@@ -94,8 +94,8 @@ export class ChebyshevEphemeris {
       for (let k = 0; k < n; k++) {
         const x = Math.cos((Math.PI * (k + 0.5)) / n);
         const t = tStart + 0.5 * G * (x + 1);
-        if (i === MOON_INDEX) moonGeocentricStateInto(t, state);
-        else seriesStateInto(body, t, state);
+        if (body === 'moon') moonGeocentricStateInto(t, state, false);
+        else seriesPositionInto(body, t, state);
         values[k] = state[0];
         values[n + k] = state[1];
         values[2 * n + k] = state[2];

@@ -85,18 +85,41 @@ function evalVariable(v: PackedVariable, T: number, out: Float64Array, k: number
   out[k + 1] = deriv;
 }
 
+function evalVariableValue(v: PackedVariable, T: number): number {
+  let value = 0;
+  let tPow = 1;
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    const arr = v[alpha];
+    let s = 0;
+    for (let i = 0; i < arr.length; i += 6) {
+      s += arr[i] * Math.sin(arr[i + 1] + T * (arr[i + 2] + T * (arr[i + 3] + T * (arr[i + 4] + T * arr[i + 5]))));
+    }
+    value += tPow * s;
+    tPow *= T;
+  }
+  return value;
+}
+
 const scratch = new Float64Array(6);
 
 /**
  * Geocentric Moon, rectangular, on the inertial mean ecliptic and equinox J2000 of ELP/MPP02,
- * in km and km/day, at `tdbDays` (TDB days from J2000.0).
+ * in km and km/day, at `tdbDays` (TDB days from J2000.0). With `withVelocity` false the velocity is not
+ * computed (half the cost) and out[3..5] are zero.
  */
-export function elpMoonGeocentricKmInto(tdbDays: number, out: Float64Array | number[]): void {
+export function elpMoonGeocentricKmInto(tdbDays: number, out: Float64Array | number[], withVelocity = true): void {
   const p = packed();
   const T = tdbDays / DAYS_PER_CENTURY;
-  evalVariable(p.L, T, scratch, 0);
-  evalVariable(p.B, T, scratch, 2);
-  evalVariable(p.R, T, scratch, 4);
+  if (withVelocity) {
+    evalVariable(p.L, T, scratch, 0);
+    evalVariable(p.B, T, scratch, 2);
+    evalVariable(p.R, T, scratch, 4);
+  } else {
+    scratch.fill(0);
+    scratch[0] = evalVariableValue(p.L, T);
+    scratch[2] = evalVariableValue(p.B, T);
+    scratch[4] = evalVariableValue(p.R, T);
+  }
   const w = p.W1;
   const W1 = w[0] + T * (w[1] + T * (w[2] + T * (w[3] + T * w[4])));
   const dW1 = w[1] + T * (2 * w[2] + T * (3 * w[3] + T * 4 * w[4]));

@@ -51,20 +51,28 @@ export type SmallRotation = {
 };
 
 /**
- * Fitted small rotations (output of `npx tsx scripts/fit-ephemeris-frame-tie.ts`, pasted here).
- * Fit: least squares of swetest ICRS positions (`-j2000 -true -icrs -fxss`, heliocentric, JD TT) against the
- * tied series, 200 epochs evenly spaced over JD 2433282.5–2506332.5 (1950-01-01 to 2150-01-01).
+ * Fitted small rotations (output of `npx tsx scripts/fit-ephemeris-frame-tie.ts`, pasted here unchanged).
+ * Fit: linear least squares of swetest ICRS positions (`-j2000 -true -icrs -fxss`; heliocentric planets, geocentric
+ * Moon; JD TT) against the series, 200 epochs evenly spaced over JD(TT) 2433282.5–2506332.5 (1950-01-01 to
+ * 2150-01-01). Residuals at the fit epochs (max / rms), doc matrix alone → with this rotation:
+ *   Mercury 17.9/7.5 → 11.0/4.3 km; Venus 22.9/12.8 → 3.8/1.6 km; Earth 29.2/18.4 → 8.2/2.4 km;
+ *   Mars 214/94 → 55/21 km; Jupiter 1781/1023 → 323/161 km; Saturn 2412/1446 → 1042/491 km;
+ *   Uranus 21763/12189 → 22479/12104 km (no gain: VSOP87's own error); Neptune 44952/33807 → 13172/8958 km;
+ *   Moon (geocentric, ε2006 alone) 0.208/0.103 → 0.152/0.082 km.
+ * The constant parts for Mercury, Earth and Mars agree on ≈18 mas about the ecliptic y axis (a tilt of the VSOP87
+ * ecliptic against the ICRS-based one); the z (longitude) parts and rates differ per body: they are mean-longitude
+ * errors of the theory against DE431, not frame.
  */
 export const FRAME_TIE_FIT: Readonly<Record<Vsop87Planet | 'moon', SmallRotation>> = Object.freeze({
-  mercury: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  venus: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  earth: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  mars: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  jupiter: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  saturn: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  uranus: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  neptune: { theta0Mas: [0.6, 18.7, 19.9], theta1MasPerCentury: [0, 0, 0] },
-  moon: { theta0Mas: [5.86, -26.76, -31.32], theta1MasPerCentury: [0, 0, 0] },
+  mercury: { theta0Mas: [-1.106, 18.329, -3.426], theta1MasPerCentury: [-2.155, 0.588, -17.832] },
+  venus: { theta0Mas: [5.095, 3.835, 9.206], theta1MasPerCentury: [1.221, -2.789, 21.559] },
+  earth: { theta0Mas: [1.498, 18.400, 10.820], theta1MasPerCentury: [-2.020, -0.674, 16.749] },
+  mars: { theta0Mas: [1.827, 17.802, 13.088], theta1MasPerCentury: [-0.526, -4.027, 95.093] },
+  jupiter: { theta0Mas: [-28.323, 82.988, -129.505], theta1MasPerCentury: [-10.980, -3.831, -203.055] },
+  saturn: { theta0Mas: [2.874, -3.836, -133.263], theta1MasPerCentury: [-3.433, 0.902, -105.850] },
+  uranus: { theta0Mas: [55.773, 6.572, 113.276], theta1MasPerCentury: [-8.021, 2.957, -38.303] },
+  neptune: { theta0Mas: [-32.481, 80.880, -822.042], theta1MasPerCentury: [-22.505, -21.528, -1066.470] },
+  moon: { theta0Mas: [2.379, -20.432, -30.206], theta1MasPerCentury: [0, 0, 0] },
 });
 
 export const FRAME_TIE_DESCRIPTION =

@@ -8,13 +8,13 @@
 import type { Vec3 } from '../vec';
 import { AU_KM } from '../constants';
 import type { EphemerisBody } from './bodies';
-import { vsop87StateInto } from './vsop87';
+import { vsop87PositionInto, vsop87StateInto } from './vsop87';
 import { elpMoonGeocentricKmInto } from './elpmpp02';
 import { applyTieInPlace, ELP_ECLIPTIC_TO_EQUATORIAL, FRAME_TIE_FIT, VSOP87_TO_FK5 } from './frame-tie';
 
 /** Geocentric Moon, ICRF equatorial, AU and AU/day, into `out` (6 values). */
-export function moonGeocentricStateInto(tdbDays: number, out: Float64Array | number[]): void {
-  elpMoonGeocentricKmInto(tdbDays, out);
+export function moonGeocentricStateInto(tdbDays: number, out: Float64Array | number[], withVelocity = true): void {
+  elpMoonGeocentricKmInto(tdbDays, out, withVelocity);
   for (let k = 0; k < 6; k++) out[k] /= AU_KM;
   applyTieInPlace(out, ELP_ECLIPTIC_TO_EQUATORIAL, FRAME_TIE_FIT.moon, tdbDays);
 }
@@ -32,6 +32,18 @@ export function seriesStateInto(body: EphemerisBody, tdbDays: number, out: Float
     return;
   }
   vsop87StateInto(body, tdbDays, out);
+  applyTieInPlace(out, VSOP87_TO_FK5, FRAME_TIE_FIT[body], tdbDays);
+}
+
+/**
+ * Heliocentric ICRF position only (AU) into out[0..2] (out needs 6 slots; out[3..5] are scratch).
+ * Half the cost of seriesStateInto; used to build the Chebyshev cache. Not for the Moon (use the geocentric one).
+ */
+export function seriesPositionInto(body: Exclude<EphemerisBody, 'moon'>, tdbDays: number, out: Float64Array | number[]): void {
+  vsop87PositionInto(body, tdbDays, out);
+  out[3] = 0;
+  out[4] = 0;
+  out[5] = 0;
   applyTieInPlace(out, VSOP87_TO_FK5, FRAME_TIE_FIT[body], tdbDays);
 }
 

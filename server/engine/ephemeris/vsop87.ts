@@ -92,6 +92,33 @@ function evalVariable(v: PackedVariable, tau: number, out: Float64Array, k: numb
   out[k + 1] = deriv;
 }
 
+/** Σ_α τ^α Σ A cos(B + Cτ) without the derivative (cache building). */
+function evalVariableValue(v: PackedVariable, tau: number): number {
+  let value = 0;
+  let tauPow = 1;
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    const arr = v[alpha];
+    let s = 0;
+    for (let i = 0; i < arr.length; i += 3) s += arr[i] * Math.cos(arr[i + 1] + arr[i + 2] * tau);
+    value += tauPow * s;
+    tauPow *= tau;
+  }
+  return value;
+}
+
+/** Position only (AU, VSOP87 frame), half the cost of vsop87StateInto; out[3..5] are left untouched. */
+export function vsop87PositionInto(planet: Vsop87Planet, tdbDays: number, out: Float64Array | number[]): void {
+  const p = packed(planet);
+  const tau = tdbDays / DAYS_PER_MILLENNIUM;
+  const L = evalVariableValue(p.L, tau);
+  const B = evalVariableValue(p.B, tau);
+  const R = evalVariableValue(p.R, tau);
+  const cB = Math.cos(B);
+  out[0] = R * cB * Math.cos(L);
+  out[1] = R * cB * Math.sin(L);
+  out[2] = R * Math.sin(B);
+}
+
 const scratch = new Float64Array(6);
 
 /**
