@@ -1,0 +1,86 @@
+// The Tocsin process: migrate, seed, build the client when needed, start the local mail fake
+// (unless SMTP_URL is set), serve API and client from one origin, print where everything is.
+import http from 'node:http';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { Transporter } from 'nodemailer';
+import { buildApp } from './app';
+import { ensureClientBuilt } from './clientBuild';
+import { loadConfig } from './config';
+import { closeDb, openDb } from './db/client';
+import { runMigrations } from './db/migrate';
+import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
+import { createTransport } from './services/mail';
+import { ROLE_LABELS } from '../shared/roles';
+
+const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+
+async function main(): Promise<void> {
+  const config = loadConfig();
+  const db = openDb(config.databaseFile);
+  runMigrations(db);
+  const { inserted } = await seed(db);
+  console.log(`Database ${config.databaseFile}: migrations applied, demo seed ${inserted ? `added ${inserted} rows` : 'already present'}.`);
+
+  const client = await ensureClientBuilt(ROOT);
+
+  let stopMailFake: (() => Promise<void>) | undefined;
+  let transport: Transporter;
+  let inboxUrl: string | undefined;
+  if (config.smtpUrl) {
+    transport = createTransport(config.smtpUrl);
+  } else {
+    const { MailDev } = await import('maildev');
+    const maildev = new MailDev({ smtp: config.smtpPort, web: config.mailWebPort, ip: config.host ?? '0.0.0.0', webIp: config.host ?? '0.0.0.0', silent: true });
+    await maildev.start();
+    stopMailFake = () => maildev.stop();
+    transport = createTransport(`smtp://127.0.0.1:${config.smtpPort}`);
+    inboxUrl = `http://localhost:${config.mailWebPort}`;
+  }
+
+  const { app, services } = buildApp({ db, config, mailTransport: transport, clientDir: client.clientDir });
+  const server = http.createServer(app);
+  await new Promise<void>((resolve, reject) => {
+    server.once('error', reject);
+    server.listen(config.port, config.host, () => resolve());
+  });
+
+  const timers = [
+    setInterval(() => void services.mail.deliverPending(), 30_000),
+    setInterval(() => services.sessionStore.prune(), 10 * 60_000),
+  ];
+  for (const t of timers) t.unref();
+  void services.mail.deliverPending();
+
+  const width = Math.max(...DEMO_USERS.map((u) => u.email.length));
+  console.log('');
+  console.log(`Tocsin is running at ${config.publicUrl}   (${DEMO_OFFICE.name}, demo data)`);
+  if (!client.built) console.log(`  !! The web client is NOT built: ${client.problem}. Only the API under /api works.`);
+  else if (client.problem) console.log(`  !! ${client.problem}.`);
+  console.log(inboxUrl ? `Mail inbox (local fake): ${inboxUrl}   (SMTP on port ${config.smtpPort})` : `Mail goes out through ${config.smtpUrl!.replace(/\/\/[^@/]*@/, '//***@')}`);
+  if (config.sessionSecretGenerated) console.log('SESSION_SECRET not set: using a random one, so sessions end when the server restarts.');
+  console.log('Demo sign-ins:');
+  for (const u of DEMO_USERS) console.log(`  ${ROLE_LABELS[u.role].padEnd(20)} ${u.email.padEnd(width)}  ${u.password}`);
+  console.log('');
+
+  let stopping = false;
+  const stop = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    console.log(`${signal}: shutting down`);
+    for (const t of timers) clearInterval(t);
+    server.closeAllConnections();
+    await new Promise<void>((resolve) => server.close(() => resolve()));
+    transport.close();
+    await stopMailFake?.().catch(() => undefined);
+    closeDb(db);
+    process.exit(0);
+  };
+  process.on('SIGINT', () => void stop('SIGINT'));
+  process.on('SIGTERM', () => void stop('SIGTERM'));
+}
+
+main().catch((err) => {
+  console.error('Tocsin could not start:', err instanceof Error ? err.message : err);
+  process.exit(1);
+});
