@@ -30,14 +30,22 @@ export function safeguardedNewton(
   x0: number,
   maxIterations = 200,
 ): { x: number; iterations: number } {
+  // As rtsafe (Press et al., Numerical Recipes, §9.4): take the Newton step only if it stays inside the bracket and
+  // the step is shrinking fast enough; otherwise bisect. This avoids the slow creep of Newton on exponential
+  // (hyperbolic) functions started far from the root.
   let x = Math.min(Math.max(x0, lo), hi);
+  let dxOld = hi - lo;
   for (let it = 1; it <= maxIterations; it++) {
     const [f, fp] = fdf(x);
     if (f === 0) return { x, iterations: it };
     if (f > 0 || !Number.isFinite(f)) hi = x;
     else lo = x;
-    let xn = x - f / fp;
-    if (!Number.isFinite(xn) || xn <= lo || xn >= hi) xn = 0.5 * (lo + hi);
+    const newtonStep = f / fp;
+    let xn = x - newtonStep;
+    if (!Number.isFinite(xn) || xn <= lo || xn >= hi || Math.abs(2 * newtonStep) > Math.abs(dxOld)) {
+      xn = 0.5 * (lo + hi);
+    }
+    dxOld = xn - x;
     const tol = 4e-16 * Math.max(Math.abs(xn), Number.MIN_VALUE * 1e10);
     if (Math.abs(xn - x) <= tol || hi - lo <= tol) return { x: xn, iterations: it };
     x = xn;

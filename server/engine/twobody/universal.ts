@@ -8,6 +8,11 @@
  *   √μ Δt = σ₀ χ² C(z) + (1 − α r₀) χ³ S(z) + r₀ χ ≡ F(χ),   F′(χ) = r(χ) > 0.
  * F is strictly increasing, so the root is bracketed and found by safeguarded Newton (bisection fallback):
  * no divergence at any eccentricity. For bound orbits Δt is first reduced by whole periods.
+ *
+ * Conditioning: started far out on a hyperbola and run back towards perihelion, the terms σ₀χ²C and
+ * (1−αr₀)χ³S are huge and cancel, so the result loses digits (~7 for 100 years on a q = 1 AU, e = 3 orbit; ~1e-5
+ * relative for 10^5 years). The time-of-perihelion path in elements.ts has only positive terms and is well
+ * conditioned; use it (stateToElements + elementsToState) for such arcs.
  */
 import type { Vec3 } from '../vec';
 import { dot, norm } from '../vec';
@@ -108,6 +113,14 @@ export function keplerUniversal(r0: Vec3, v0: Vec3, dt: number, mu: number): Uni
   let guess: number;
   if (alpha > 1e-12 / r0n) guess = sqrtMu * alpha * dtr;
   else guess = target / r0n;
+  if (alpha < -1e-12 / r0n) {
+    // Vallado 2013 Alg. 8 hyperbolic starter: χ₀ = sgn(Δt)√(−a) ln[(−2μαΔt)/(r₀·v₀ + sgn(Δt)√(−μa)(1 − r₀α))]
+    const a = 1 / alpha;
+    const sg = dtr > 0 ? 1 : -1;
+    const arg = (-2 * mu * alpha * dtr) / (sigma0 * sqrtMu + sg * Math.sqrt(-mu * a) * oneMinusAlphaR0);
+    const g = sg * Math.sqrt(-a) * Math.log(arg);
+    if (Number.isFinite(g) && g * dtr > 0) guess = g;
+  }
   // Bracket the root of the increasing function: F(0) = −target.
   let lo: number;
   let hi: number;
