@@ -25,7 +25,10 @@ export function wilsonInterval(hits: number, samples: number, z = Z95): [number,
   const denom = 1 + z2 / n;
   const centre = (p + z2 / (2 * n)) / denom;
   const half = (z / denom) * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n));
-  return [Math.max(0, centre - half), Math.min(1, centre + half)];
+  // At K = 0 (K = N) the lower (upper) bound is exactly 0 (1); the formula gives it up to round-off.
+  const lo = hits === 0 ? 0 : Math.max(0, centre - half);
+  const hi = hits === samples ? 1 : Math.min(1, centre + half);
+  return [lo, hi];
 }
 
 /** Clopper-Pearson interval at confidence 1 - alpha: [B^-1(alpha/2; K, N-K+1), B^-1(1-alpha/2; K+1, N-K)]. */
