@@ -130,6 +130,19 @@ describe('linear impact probability over the capture disk (METHODS.md 6.3)', () 
     expect(Math.abs(r.probability - r.smallDiskApproximation) / r.smallDiskApproximation).toBeLessThan(2e-5);
   });
 
+  it('a Gaussian much smaller than the disk is found wherever it sits (inside -> 1, on the edge -> 1/2)', () => {
+    // Limits: a point-like distribution inside the disk impacts with certainty; centred on the edge of a disk much
+    // larger than sigma it sees a half-plane, IP = 1/2 up to a curvature term O(sigma/b) (computed).
+    const tiny = 1e-6;
+    const inside = linearImpactProbability({ meanKm: [0.37, 0.21], covarianceKm2: rotatedCov(3 * tiny, tiny, 0.4) }, 1);
+    expect(inside.probability).toBeCloseTo(1, 12);
+    const th = 0.9;
+    const edge = linearImpactProbability({ meanKm: [Math.cos(th), Math.sin(th)], covarianceKm2: rotatedCov(2 * tiny, tiny, 0.1) }, 1);
+    expect(Math.abs(edge.probability - 0.5)).toBeLessThan(1e-5);
+    const outside = linearImpactProbability({ meanKm: [1.001, 0], covarianceKm2: rotatedCov(tiny, tiny, 0) }, 1);
+    expect(outside.probability).toBe(0); // 1000 sigma outside: underflows
+  });
+
   it('principal axes: minor variance from det / lambda_major without cancellation', () => {
     const p = principalAxes2(rotatedCov(1e6, 1, 0.0));
     expect(p.sigmaMinor).toBe(1);
