@@ -93,7 +93,7 @@ function serveClient(app: Express, clientDir: string | undefined): void {
   const built = index !== undefined && fs.existsSync(index);
   if (built) app.use(express.static(clientDir!, { index: false, maxAge: '1h' }));
   app.use((req, res, next) => {
-    if ((req.method !== 'GET' && req.method !== 'HEAD') || req.path.startsWith('/api')) return next();
+    if ((req.method !== 'GET' && req.method !== 'HEAD') || (req.path === '/api' || req.path.startsWith('/api/'))) return next();
     if (built) {
       res.set('Cache-Control', 'no-cache');
       return res.sendFile(index!);
