@@ -58,13 +58,19 @@ describe('xoshiro256**', () => {
     expect(Xoshiro256StarStar.fromState([1n, 2n, 3n, 4n]).nextBigInt()).toBe(11520n);
   });
 
-  it('matches a BigInt transcription of the reference code for 10,000 outputs from several states', () => {
+  it('matches a BigInt transcription of the reference code for 3,000 outputs from several states', () => {
     for (const seed of [1n, 42n, M64, 0xdeadbeefcafef00dn]) {
       const sm = referenceSplitMix(seed);
       const state = [sm(), sm(), sm(), sm()];
       const g = Xoshiro256StarStar.fromState(state);
       const ref = referenceXoshiro(state);
-      for (let i = 0; i < 10_000; i++) expect(g.nextBigInt()).toBe(ref());
+      const got: bigint[] = [];
+      const want: bigint[] = [];
+      for (let i = 0; i < 3000; i++) {
+        got.push(g.nextBigInt());
+        want.push(ref());
+      }
+      expect(got).toEqual(want);
       // the SplitMix64 seeding path gives the same state
       const g2 = new Xoshiro256StarStar(seed);
       const ref2 = referenceXoshiro(state);
