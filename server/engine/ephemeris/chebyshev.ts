@@ -11,7 +11,9 @@
  * again by tests/unit/engine-ephemeris.test.ts (cache vs series) and bench/ephemeris.ts.
  */
 import { EPHEMERIS_BODIES, EARTH_INDEX, MOON_INDEX } from './bodies';
-import { moonGeocentricStateInto, seriesPositionInto } from './series';
+import { moonGeocentricStateInto } from './series';
+import { vsop87SampleInto } from './vsop87';
+import { applyTieInPlace, FRAME_TIE_FIT, VSOP87_TO_FK5 } from './frame-tie';
 import { ELP_DATA_NAME } from './elpmpp02';
 import { FRAME_TIE_DESCRIPTION } from './frame-tie';
 
@@ -89,13 +91,27 @@ export class ChebyshevEphemeris {
     const cosTab = new Float64Array(n * n);
     for (let j = 0; j < n; j++) for (let k = 0; k < n; k++) cosTab[j * n + k] = Math.cos((Math.PI * j * (k + 0.5)) / n);
     const body = EPHEMERIS_BODIES[i];
+    const offsets = new Float64Array(n); // node times relative to the granule centre
+    for (let k = 0; k < n; k++) offsets[k] = 0.5 * G * Math.cos((Math.PI * (k + 0.5)) / n);
+    const key = `${G}/${n}`;
+    const samples = new Float64Array(3 * n);
     for (let g = 0; g < this.nGranules[i]; g++) {
-      const tStart = this.startTdbDays + g * G;
+      const tCenter = this.startTdbDays + (g + 0.5) * G;
+      if (body !== 'moon') vsop87SampleInto(body, tCenter, offsets, key, samples);
       for (let k = 0; k < n; k++) {
-        const x = Math.cos((Math.PI * (k + 0.5)) / n);
-        const t = tStart + 0.5 * G * (x + 1);
-        if (body === 'moon') moonGeocentricStateInto(t, state, false);
-        else seriesPositionInto(body, t, state);
+        const t = tCenter + offsets[k];
+        if (body === 'moon') {
+          moonGeocentricStateInto(t, state, false);
+        } else {
+          // same as seriesPositionInto(body, t): VSOP87 position sampled for all nodes at once, then the tie
+          state[0] = samples[3 * k];
+          state[1] = samples[3 * k + 1];
+          state[2] = samples[3 * k + 2];
+          state[3] = 0;
+          state[4] = 0;
+          state[5] = 0;
+          applyTieInPlace(state, VSOP87_TO_FK5, FRAME_TIE_FIT[body], t);
+        }
         values[k] = state[0];
         values[n + k] = state[1];
         values[2 * n + k] = state[2];

@@ -149,3 +149,73 @@ export function vsop87StateInto(planet: Vsop87Planet, tdbDays: number, out: Floa
   out[4] = dR * cB * sL - R * sB * dB * sL + R * cB * cL * dL;
   out[5] = dR * sB + R * cB * dB;
 }
+
+/** Per planet and node pattern: cos and sin of C·Δτ_k for every term (flat, term-major, 2n values per term). */
+const OFFSET_TABLES = new Map<string, { L: Float64Array[]; B: Float64Array[]; R: Float64Array[] }>();
+
+function offsetTable(v: PackedVariable, dTau: Float64Array): Float64Array[] {
+  const n = dTau.length;
+  return v.map((arr) => {
+    const terms = arr.length / 3;
+    const t = new Float64Array(terms * 2 * n);
+    for (let i = 0; i < terms; i++) {
+      const c = arr[3 * i + 2];
+      for (let k = 0; k < n; k++) {
+        t[2 * n * i + k] = Math.cos(c * dTau[k]);
+        t[2 * n * i + n + k] = Math.sin(c * dTau[k]);
+      }
+    }
+    return t;
+  });
+}
+
+function sampleVariable(v: PackedVariable, tab: Float64Array[], tauC: number, dTau: Float64Array, out: Float64Array, acc: Float64Array): void {
+  const n = dTau.length;
+  out.fill(0, 0, n);
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    const arr = v[alpha];
+    const t = tab[alpha];
+    acc.fill(0, 0, n);
+    for (let i = 0, j = 0; i < arr.length; i += 3, j += 2 * n) {
+      const a = arr[i];
+      const phase = arr[i + 1] + arr[i + 2] * tauC;
+      const ac = a * Math.cos(phase);
+      const as = a * Math.sin(phase);
+      for (let k = 0; k < n; k++) acc[k] += ac * t[j + k] - as * t[j + n + k];
+    }
+    for (let k = 0; k < n; k++) out[k] += Math.pow(tauC + dTau[k], alpha) * acc[k];
+  }
+}
+
+/**
+ * Positions (AU, VSOP87 frame) at n times tdbCenter + offsetsDays[k], written as out[3k..3k+2]. Same values as
+ * vsop87PositionInto at each time (cos(φc + CΔτ) by angle addition, exact up to rounding), but with two
+ * trigonometric calls per term for all n times instead of n: used to fit the Chebyshev cache, whose node
+ * offsets are the same in every granule. `key` identifies the offsets pattern (tables are cached per key).
+ */
+export function vsop87SampleInto(planet: Vsop87Planet, tdbCenter: number, offsetsDays: Float64Array, key: string, out: Float64Array): void {
+  const p = packed(planet);
+  const n = offsetsDays.length;
+  const dTau = new Float64Array(n);
+  for (let k = 0; k < n; k++) dTau[k] = offsetsDays[k] / DAYS_PER_MILLENNIUM;
+  const tk = `${planet}|${key}`;
+  let tab = OFFSET_TABLES.get(tk);
+  if (!tab) {
+    tab = { L: offsetTable(p.L, dTau), B: offsetTable(p.B, dTau), R: offsetTable(p.R, dTau) };
+    OFFSET_TABLES.set(tk, tab);
+  }
+  const tauC = tdbCenter / DAYS_PER_MILLENNIUM;
+  const L = new Float64Array(n);
+  const B = new Float64Array(n);
+  const R = new Float64Array(n);
+  const acc = new Float64Array(n);
+  sampleVariable(p.L, tab.L, tauC, dTau, L, acc);
+  sampleVariable(p.B, tab.B, tauC, dTau, B, acc);
+  sampleVariable(p.R, tab.R, tauC, dTau, R, acc);
+  for (let k = 0; k < n; k++) {
+    const cB = Math.cos(B[k]);
+    out[3 * k] = R[k] * cB * Math.cos(L[k]);
+    out[3 * k + 1] = R[k] * cB * Math.sin(L[k]);
+    out[3 * k + 2] = R[k] * Math.sin(B[k]);
+  }
+}
