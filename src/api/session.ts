@@ -45,10 +45,15 @@ export function useSignIn() {
 export function useSignOut() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: () => api<void>('DELETE', '/api/session'),
+    mutationFn: async () => {
+      // A session request still in flight must not bring the old session back afterwards.
+      await qc.cancelQueries({ queryKey: sessionKeys.all });
+      await api<void>('DELETE', '/api/session');
+    },
     onSettled: () => {
-      qc.clear();
+      // Forget the session in place (observers stay attached) and drop everything else cached.
       qc.setQueryData(sessionKeys.all, null);
+      qc.removeQueries({ predicate: (q) => q.queryKey[0] !== sessionKeys.all[0] });
     },
   });
 }

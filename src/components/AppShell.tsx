@@ -14,16 +14,14 @@ export function AppShell() {
   const { user } = useAuth();
   const location = useLocation();
   const mainRef = useRef<HTMLElement>(null);
-  const firstRender = useRef(true);
+  const lastPath = useRef(location.pathname);
   const [menuOpen, setMenuOpen] = useState(false);
 
   // After in-app navigation, move focus to the main landmark so keyboard and screen-reader
   // users start at the new page's content.
   useEffect(() => {
-    if (firstRender.current) {
-      firstRender.current = false;
-      return;
-    }
+    if (lastPath.current === location.pathname) return;
+    lastPath.current = location.pathname;
     setMenuOpen(false);
     if (!location.hash) mainRef.current?.focus({ preventScroll: false });
   }, [location.pathname, location.hash]);
@@ -85,7 +83,16 @@ function UserMenu() {
       <Button
         variant="secondary"
         busy={signOut.isPending}
-        onClick={() => signOut.mutate(undefined, { onSettled: () => navigate('/sign-in', { replace: true }) })}
+        onClick={async () => {
+          // mutateAsync rather than per-call callbacks: this menu unmounts as soon as the session is gone.
+          try {
+            await signOut.mutateAsync();
+          } catch {
+            // The session is forgotten locally either way (see useSignOut).
+          } finally {
+            void navigate('/sign-in', { replace: true });
+          }
+        }}
       >
         Sign out
       </Button>

@@ -2,7 +2,7 @@
 import { useId, type ButtonHTMLAttributes, type HTMLAttributes, type InputHTMLAttributes, type ReactNode, type SelectHTMLAttributes } from 'react';
 import { ApiError } from '../api/client';
 
-type ButtonVariant = 'primary' | 'secondary' | 'danger' | 'quiet';
+type ButtonVariant = 'primary' | 'secondary' | 'danger' | 'danger-outline' | 'quiet';
 
 const buttonBase =
   'inline-flex items-center justify-center gap-2 rounded-md px-4 py-2 text-sm font-medium transition-colors ' +
@@ -11,6 +11,7 @@ const buttonVariants: Record<ButtonVariant, string> = {
   primary: 'bg-accent-700 text-white hover:bg-accent-800 shadow-sm',
   secondary: 'border border-rule bg-white text-ink hover:bg-accent-50',
   danger: 'bg-danger-700 text-white hover:bg-red-900 shadow-sm',
+  'danger-outline': 'border border-danger-200 bg-white text-danger-700 hover:bg-danger-50',
   quiet: 'text-accent-700 hover:bg-accent-50',
 };
 
@@ -43,7 +44,7 @@ export function Spinner({ className = '' }: { className?: string }) {
 }
 
 const inputClass =
-  'block w-full rounded-md border border-rule bg-white px-3 py-2 text-base text-ink shadow-xs ' +
+  'block h-10 w-full rounded-md border border-rule bg-white px-3 py-2 text-base text-ink shadow-xs ' +
   'placeholder:text-ink-soft/60 focus:border-accent-600 aria-[invalid=true]:border-danger-700';
 
 type FieldProps = { label: string; hint?: ReactNode; error?: string };

@@ -133,12 +133,17 @@ export async function navLabels(page: Page): Promise<string[]> {
 
 export async function signOut(page: Page): Promise<void> {
   await page.getByRole('button', { name: 'Sign out' }).click();
-  await page.waitForURL('**/sign-in');
+  try {
+    await page.waitForURL((u) => u.pathname === '/sign-in');
+  } catch (e) {
+    throw new Error(`Sign-out did not reach /sign-in; the page is at ${page.url()} showing "${await mainHeading(page).catch(() => '?')}"`, { cause: e });
+  }
 }
 
 export async function screenshot(page: Page, name: string): Promise<string> {
   mkdirSync(SHOTS_DIR, { recursive: true });
   const file = path.join(SHOTS_DIR, `${name}.png`);
+  await page.mouse.move(0, 0); // no hover effects from the last click
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }

@@ -138,8 +138,8 @@ export function UsersPage() {
                               </Button>
                               {u.active ? (
                                 <Button
-                                  variant="secondary"
-                                  className="px-3 py-1 text-danger-700"
+                                  variant="danger-outline"
+                                  className="px-3 py-1"
                                   aria-label={`Deactivate ${u.name}`}
                                   onClick={() => setPending({ kind: 'deactivate', user: u })}
                                 >

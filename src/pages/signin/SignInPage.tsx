@@ -18,12 +18,16 @@ export function SignInPage() {
   const navigate = useNavigate();
   const [email, setEmail] = useState(params.get('email') ?? '');
   const [password, setPassword] = useState('');
+  const [missing, setMissing] = useState<{ email?: string; password?: string }>({});
 
   if (isLoading) return <LoadingState />;
   if (session && !signIn.isPending && !signIn.isSuccess) return <Navigate to={next} replace />;
 
   const onSubmit = (e: FormEvent) => {
     e.preventDefault();
+    const m = { email: email.trim() ? undefined : 'Enter your e-mail address', password: password ? undefined : 'Enter your password' };
+    setMissing(m);
+    if (m.email || m.password) return;
     signIn.mutate({ email, password }, { onSuccess: () => navigate(next, { replace: true }) });
   };
 
@@ -55,6 +59,7 @@ export function SignInPage() {
             required
             value={email}
             onChange={(e) => setEmail(e.target.value)}
+            error={missing.email}
           />
           <TextField
             label="Password"
@@ -64,8 +69,9 @@ export function SignInPage() {
             required
             value={password}
             onChange={(e) => setPassword(e.target.value)}
+            error={missing.password}
           />
-          <Button type="submit" className="w-full" busy={signIn.isPending} disabled={!email || !password}>
+          <Button type="submit" className="w-full" busy={signIn.isPending}>
             Sign in
           </Button>
         </form>

@@ -1,0 +1,191 @@
+// Admin work through the UI: invite a user, the invitee sets a password from the e-mailed link
+// and signs in, the admin changes their role and deactivates them; and the sign-in refusal is
+// the same uniform message for a wrong password, an unknown e-mail and a deactivated account
+// (issue 2: "a uniform error that does not reveal whether the e-mail exists").
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { startTestServer } from '../helpers/testServer';
+import {
+  demoCredentials,
+  ensureClientBuilt,
+  isVisible,
+  launchBrowser,
+  navLabels,
+  newContext,
+  screenshot,
+  signIn,
+  waitForHeading,
+  watchPageErrors,
+} from './harness';
+
+let server: Awaited<ReturnType<typeof startTestServer>>;
+let browser: Browser;
+
+beforeAll(async () => {
+  await ensureClientBuilt();
+  server = await startTestServer();
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+/** The invitation link's token from the newest e-mail to `address` caught by the test server's SMTP fake. */
+async function invitationTokenFor(address: string): Promise<string> {
+  const mail = await server.mail.waitFor(address, 10_000);
+  const match = /\/invite\/([A-Za-z0-9_-]{20,100})/.exec(mail.text);
+  if (!match) throw new Error(`The e-mail to ${address} has no /invite/<token> link:\n${mail.text}`);
+  return match[1];
+}
+
+/** The visible refusal on the sign-in page after a failed attempt. */
+async function signInError(page: Page): Promise<string> {
+  const alert = page.getByRole('alert');
+  await alert.waitFor({ state: 'visible' });
+  return ((await alert.textContent()) ?? '').trim();
+}
+
+function row(page: Page, email: string) {
+  return page.getByTestId(`user-row-${email}`);
+}
+
+describe('admin users', () => {
+  const invitee = { name: 'Oskar Fenwyck', email: 'oskar.fenwyck@hspdo.example', password: 'quiet-harbour-lantern-42' };
+
+  it('invites a user, who sets a password and signs in; then changes their role and deactivates them', async () => {
+    const adminCtx = await newContext(browser, server.url);
+    const admin = await adminCtx.newPage();
+    const adminErrors = watchPageErrors(admin);
+    const creds = demoCredentials('admin');
+    await signIn(admin, creds.email, creds.password);
+    await admin.waitForURL((u) => u.pathname === '/');
+
+    // From home, the "Invite a colleague" task leads to the form.
+    await admin.getByRole('link', { name: /Invite a colleague/ }).click();
+    expect(await waitForHeading(admin, 'Users')).toBe('Users');
+    const form = admin.locator('#new-user');
+    await form.getByLabel('Full name').fill(invitee.name);
+    await form.getByLabel('E-mail address').fill(invitee.email);
+    await form.getByLabel('Role').selectOption({ label: 'Analyst' });
+    await form.getByRole('button', { name: 'Send invitation' }).click();
+    await form.getByText(`Invitation sent to ${invitee.email}`).waitFor();
+    expect(await isVisible(row(admin, invitee.email))).toBe(true);
+    expect((await row(admin, invitee.email).getByTestId('role').textContent())?.trim()).toBe('Analyst');
+    expect(await row(admin, invitee.email).getByText('Invited', { exact: true }).count()).toBe(1);
+
+    // The invitee opens the link from the e-mail in their own browser context.
+    const token = await invitationTokenFor(invitee.email);
+    const userCtx = await newContext(browser, server.url);
+    const user = await userCtx.newPage();
+    const userErrors = watchPageErrors(user);
+    await user.goto(`/invite/${token}`);
+    await user.getByText(`Welcome, ${invitee.name}`).waitFor();
+    // Too short a password is refused in the form (the API requires at least 12 characters).
+    await user.getByLabel('Password', { exact: true }).fill('short');
+    await user.getByLabel('Repeat the password').fill('short');
+    await user.getByRole('button', { name: 'Set password' }).click();
+    expect(await isVisible(user.getByText('Use at least 12 characters'))).toBe(true);
+    await user.getByLabel('Password', { exact: true }).fill(invitee.password);
+    await user.getByLabel('Repeat the password').fill(invitee.password);
+    await user.getByRole('button', { name: 'Set password' }).click();
+    await user.getByText('Your password is set').waitFor();
+    await user.getByRole('link', { name: 'Go to sign-in' }).click();
+    await user.waitForURL('**/sign-in?email=*');
+    expect(await user.getByLabel('E-mail address').inputValue()).toBe(invitee.email);
+    await user.getByLabel('Password', { exact: true }).fill(invitee.password);
+    await user.getByRole('button', { name: 'Sign in' }).click();
+    await user.waitForURL((u) => u.pathname === '/');
+    expect(await navLabels(user)).toEqual(['Home', 'Account']);
+    expect(await user.getByTestId('current-user').textContent()).toContain('Analyst');
+
+    // The used link cannot be used again.
+    const reuseCtx = await newContext(browser, server.url);
+    const reuse = await reuseCtx.newPage();
+    await reuse.goto(`/invite/${token}`);
+    expect(await isVisible(reuse.getByText('This invitation link cannot be used'))).toBe(true);
+    await reuseCtx.close();
+
+    // Admin changes the role, through the confirmation dialog.
+    await admin.reload();
+    await row(admin, invitee.email).getByText('Active', { exact: true }).waitFor();
+    await admin.getByRole('button', { name: `Change role of ${invitee.name}` }).click();
+    const roleDialog = admin.getByRole('dialog', { name: `Change the role of ${invitee.name}` });
+    await roleDialog.waitFor();
+    await roleDialog.getByLabel('New role').selectOption({ label: 'Reviewer' });
+    await screenshot(admin, 'admin-change-role-dialog');
+    await roleDialog.getByRole('button', { name: 'Change role' }).click();
+    await roleDialog.waitFor({ state: 'hidden' });
+    await admin.getByText(`${invitee.name} is now Reviewer.`).waitFor();
+    expect((await row(admin, invitee.email).getByTestId('role').textContent())?.trim()).toBe('Reviewer');
+    // The server agrees, and the invitee's own session shows the new role on the next request.
+    const listed = (await (await admin.request.get('/api/users')).json()) as { users: Array<{ email: string; role: string }> };
+    expect(listed.users.find((u) => u.email === invitee.email)?.role).toBe('reviewer');
+    await user.reload();
+    await user.getByTestId('current-user').getByText('Reviewer').waitFor();
+
+    // Cancelling a deactivation changes nothing.
+    await admin.getByRole('button', { name: `Deactivate ${invitee.name}` }).click();
+    const deactivateDialog = admin.getByRole('dialog', { name: `Deactivate ${invitee.name}?` });
+    await deactivateDialog.getByRole('button', { name: 'Cancel' }).click();
+    await deactivateDialog.waitFor({ state: 'hidden' });
+    expect(await row(admin, invitee.email).getByText('Active', { exact: true }).count()).toBe(1);
+
+    // Deactivation, confirmed: the invitee's session ends at once and they cannot sign in.
+    await admin.getByRole('button', { name: `Deactivate ${invitee.name}` }).click();
+    await deactivateDialog.getByRole('button', { name: 'Deactivate' }).click();
+    await deactivateDialog.waitFor({ state: 'hidden' });
+    await row(admin, invitee.email).getByText('Deactivated', { exact: true }).waitFor();
+    await screenshot(admin, 'admin-users-after-deactivation');
+    expect((await user.request.get('/api/session')).status()).toBe(401);
+    await user.reload();
+    await user.waitForURL('**/sign-in');
+    await signIn(user, invitee.email, invitee.password);
+    const refusal = await signInError(user);
+    expect(refusal.length).toBeGreaterThan(0);
+
+    // The refusal is word for word the one a wrong password gets.
+    const probeCtx = await newContext(browser, server.url);
+    const probe = await probeCtx.newPage();
+    await signIn(probe, creds.email, 'not-the-right-password');
+    expect(await signInError(probe)).toBe(refusal);
+    await probeCtx.close();
+
+    // Reactivation lets them in again.
+    await admin.getByRole('button', { name: `Reactivate ${invitee.name}` }).click();
+    await admin.getByRole('dialog', { name: `Reactivate ${invitee.name}?` }).getByRole('button', { name: 'Reactivate' }).click();
+    await row(admin, invitee.email).getByText('Active', { exact: true }).waitFor();
+    await signIn(user, invitee.email, invitee.password);
+    await user.waitForURL((u) => u.pathname === '/');
+
+    expect(adminErrors).toEqual([]);
+    expect(userErrors).toEqual([]);
+    await userCtx.close();
+    await adminCtx.close();
+  });
+});
+
+describe('sign-in refusal', () => {
+  it('shows the same uniform error for a wrong password and for an unknown e-mail, and stays on sign-in', async () => {
+    const context = await newContext(browser, server.url);
+    const page = await context.newPage();
+    const errors = watchPageErrors(page);
+
+    await signIn(page, demoCredentials('analyst').email, 'tocsin-wrong-password');
+    const wrongPassword = await signInError(page);
+    expect(wrongPassword).not.toBe('');
+    expect(new URL(page.url()).pathname).toBe('/sign-in');
+    // The message must not say which of the two was wrong.
+    expect(wrongPassword.toLowerCase()).not.toMatch(/no (such )?(user|account)|unknown e-?mail|not registered|wrong password/);
+    await screenshot(page, 'sign-in-wrong-password');
+
+    await signIn(page, 'nobody-here@hspdo.example', 'tocsin-wrong-password');
+    expect(await signInError(page)).toBe(wrongPassword);
+
+    // Nothing was signed in.
+    expect((await page.request.get('/api/session')).status()).toBe(401);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
