@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { captureRadiusKm, escapeSpeedKmS, impactSpeedKmS } from '../../server/engine/risk/capture';
+import { captureRadiusFromVInfKm, escapeSpeedKmS, impactSpeedKmS } from '../../server/engine/risk/capture';
 import { linearImpactProbability, principalAxes2 } from '../../server/engine/risk/linear-ip';
+import { captureRadiusKm as dynCaptureRadiusKm } from '../../server/engine/dynamics/bplane';
+import { GM_KM3_S2 } from '../../server/engine/constants';
 import { gaussLegendre } from '../../server/engine/risk/quadrature';
 import { RandomStream } from '../../server/engine/risk/random';
 import { wilsonInterval } from '../../server/engine/risk/intervals';
@@ -71,15 +73,19 @@ describe('capture radius and impact speed (CHECKS.md 4)', () => {
     // and b/R = sqrt(1 + 11.1799^2/100) = 1.49997, v_imp = 14.9997 km/s (computed). b/R = 1.5004 and
     // v_imp = 15.004 follow from v_esc = 11.186 km/s, i.e. R = 6371.0 km (the mean Earth radius). We test both.
     expect(escapeSpeedKmS()).toBeCloseTo(11.18, 3);
-    expect(captureRadiusKm(10) / 6378.137).toBeCloseTo(1.49997, 5);
+    expect(captureRadiusFromVInfKm(10) / 6378.137).toBeCloseTo(1.49997, 5);
     expect(impactSpeedKmS(10)).toBeCloseTo(14.9997, 4);
-    expect(captureRadiusKm(10, 6371.0) / 6371.0).toBeCloseTo(1.5004, 4);
+    expect(captureRadiusFromVInfKm(10, 6371.0) / 6371.0).toBeCloseTo(1.5004, 4);
     expect(impactSpeedKmS(10, 6371.0)).toBeCloseTo(15.004, 3);
     // b/R = v_imp / v_inf identically (energy and angular momentum conservation)
-    expect(captureRadiusKm(7.3) / 6378.137).toBeCloseTo(impactSpeedKmS(7.3) / 7.3, 14);
+    expect(captureRadiusFromVInfKm(7.3) / 6378.137).toBeCloseTo(impactSpeedKmS(7.3) / 7.3, 14);
     // METHODS.md 7: v_inf = 15 -> v_imp = 18.7 km/s (computed)
     expect(impactSpeedKmS(15)).toBeCloseTo(18.7, 1);
-    expect(() => captureRadiusKm(0)).toThrow();
+    expect(() => captureRadiusFromVInfKm(0)).toThrow();
+    // Consistency with the dynamics module's own capture radius (same formula, argument order radius, mu, v_inf).
+    for (const v of [3, 10, 25]) {
+      expect(captureRadiusFromVInfKm(v)).toBeCloseTo(dynCaptureRadiusKm(6378.137, GM_KM3_S2.earth, v), 9);
+    }
   });
 });
 

@@ -12,7 +12,7 @@ export function escapeSpeedKmS(gmKm3S2: number = GM_KM3_S2.earth, radiusKm: numb
 }
 
 /** Capture radius on the b-plane, km: b = R sqrt(1 + v_esc^2 / v_inf^2). */
-export function captureRadiusKm(
+export function captureRadiusFromVInfKm(
   vInfinityKmS: number,
   radiusKm: number = RADIUS_KM.earth,
   gmKm3S2: number = GM_KM3_S2.earth,
