@@ -9,8 +9,8 @@ import {
   EPHEMERIS_BODIES,
   moonGeocentricStateInto,
   seriesStateInto,
-} from '../server/engine/ephemeris';
-import { seriesPositionInto } from '../server/engine/ephemeris/series';
+} from '../../server/engine/ephemeris';
+import { seriesPositionInto } from '../../server/engine/ephemeris/series';
 
 const RUNS = 7;
 const start = 9131.5; // 2025-01-01

@@ -9,11 +9,11 @@
  * JD(TT) 2433282.5–2506332.5 (1950-01-01 to 2150-01-01); TDB − TT (< 2 ms) is applied as in tests/reference/swetest.ts.
  * Prints the constants to paste into frame-tie.ts (stdout) and the residuals before/after at the fit epochs (stderr).
  */
-import { swetestStates, tdbMinusTtSecondsApprox } from '../tests/reference/swetest';
-import { vsop87StateInto, type Vsop87Planet } from '../server/engine/ephemeris/vsop87';
-import { elpMoonGeocentricKmInto } from '../server/engine/ephemeris/elpmpp02';
-import { ELP_ECLIPTIC_TO_EQUATORIAL, VSOP87_TO_FK5 } from '../server/engine/ephemeris/frame-tie';
-import { AU_KM } from '../server/engine/constants';
+import { swetestStates, tdbMinusTtSecondsApprox } from './swetest';
+import { vsop87StateInto, type Vsop87Planet } from '../../server/engine/ephemeris/vsop87';
+import { elpMoonGeocentricKmInto } from '../../server/engine/ephemeris/elpmpp02';
+import { ELP_ECLIPTIC_TO_EQUATORIAL, VSOP87_TO_FK5 } from '../../server/engine/ephemeris/frame-tie';
+import { AU_KM } from '../../server/engine/constants';
 
 const MAS_RAD = Math.PI / (180 * 3600 * 1000);
 const FIT_START_JD_TT = 2433282.5;

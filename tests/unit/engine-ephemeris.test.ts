@@ -3,7 +3,7 @@
  * handbook CHECKS.md §2), plus the Chebyshev cache against the series it was fitted to.
  *
  * Epochs: none of the swetest epochs below is one of the 200 epochs the frame-tie rotation was fitted on
- * (scripts/fit-ephemeris-frame-tie.ts uses JD(TT) 2433282.5 + k·367.09 d); these are offset by fractions of a day
+ * (tests/reference/fit-ephemeris-frame-tie.ts uses JD(TT) 2433282.5 + k·367.09 d); these are offset by fractions of a day
  * and spaced differently, so they test the fit out of sample within 1950–2150.
  *
  * Every comparison is on ICRF equatorial axes: swetest `-j2000 -true -icrs -fxss -speed` (tests/reference/swetest.ts).
@@ -149,7 +149,7 @@ describe('series vs swetest (DE431), ICRF equatorial', () => {
     expect(max).toBeLessThan(120);
   });
 
-  it('other planets at one epoch, tolerance from the fit residuals (scripts/fit-ephemeris-frame-tie.ts)', () => {
+  it('other planets at one epoch, tolerance from the fit residuals (tests/reference/fit-ephemeris-frame-tie.ts)', () => {
     // Measured maxima 1950–2150 after the tie: Mercury 11, Venus 4, Jupiter 323, Saturn 1042, Uranus 22479,
     // Neptune 13172 km (VSOP87's own error grows with distance). Tolerances are twice those.
     const tolKm: Record<string, number> = {
@@ -271,7 +271,7 @@ describe('ChebyshevEphemeris (contract API)', () => {
   it('positionsInto costs under 1 microsecond for all nine bodies (best of 5 runs)', () => {
     // Issue 3 target. A timing check on a machine shared with other jobs: CPU time of this process
     // (process.cpuUsage, not wall time, so time spent descheduled does not count), best of five runs of
-    // 200,000 calls (bench/ephemeris.ts prints wall-clock medians).
+    // 200,000 calls (tests/bench/ephemeris.ts prints wall-clock medians).
     const out = new Float64Array(27);
     const runs: number[] = [];
     let sink = 0;

@@ -8,7 +8,7 @@
  * Moon costs three additions and the Earth series is never evaluated twice.
  *
  * Granule lengths and degrees: METHODS.md §4.5 gives sizes measured to reach 1 m; the table below was checked
- * again by tests/unit/engine-ephemeris.test.ts (cache vs series) and bench/ephemeris.ts.
+ * again by tests/unit/engine-ephemeris.test.ts (cache vs series) and tests/bench/ephemeris.ts.
  */
 import { EPHEMERIS_BODIES, EARTH_INDEX, MOON_INDEX } from './bodies';
 import { moonGeocentricStateInto } from './series';

@@ -7,7 +7,7 @@
  *   METHODS.md §2 [C]): ε = 23°26′21.4091″ about x and ψ = −0.0990″ about z.
  * - θ_b(t) = θ0_b + θ1_b·T (T in Julian centuries TDB from J2000) is a small rotation vector on the VSOP87
  *   ecliptic axes, FITTED by least squares against Debian's swetest (Swiss Ephemeris files compressed from
- *   JPL DE431, ICRF axes) over 1950–2150 — see scripts/fit-ephemeris-frame-tie.ts and `FRAME_TIE_FIT` below.
+ *   JPL DE431, ICRF axes) over 1950–2150 — see tests/reference/fit-ephemeris-frame-tie.ts and `FRAME_TIE_FIT` below.
  *   Its constant part is the residual frame offset VSOP87/FK5 → ICRS (tens of mas: FK5 → ICRS alone is
  *   20–25 mas, Hilton & Hohenkerk 2004); its rate part absorbs the drift in mean longitude of VSOP87 (fitted
  *   in 1988 to DE200) against the DE4xx ephemerides, 10–100 mas per century for the inner planets.
@@ -51,7 +51,7 @@ export type SmallRotation = {
 };
 
 /**
- * Fitted small rotations (output of `npx tsx scripts/fit-ephemeris-frame-tie.ts`, pasted here unchanged).
+ * Fitted small rotations (output of `npx tsx tests/reference/fit-ephemeris-frame-tie.ts`, pasted here unchanged).
  * Fit: linear least squares of swetest ICRS positions (`-j2000 -true -icrs -fxss`; heliocentric planets, geocentric
  * Moon; JD TT) against the series, 200 epochs evenly spaced over JD(TT) 2433282.5–2506332.5 (1950-01-01 to
  * 2150-01-01). Residuals at the fit epochs (max / rms), doc matrix alone → with this rotation:
