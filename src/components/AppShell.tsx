@@ -74,7 +74,7 @@ function UserMenu() {
   if (!user) return null;
   return (
     <div className="flex items-center gap-3 border-t border-rule pt-3 md:ml-auto md:border-0 md:pt-0">
-      <div className="text-right text-sm leading-tight" data-testid="current-user">
+      <div className="text-sm leading-tight md:text-right" data-testid="current-user">
         <Link to="/account" className="font-medium text-ink no-underline hover:underline">
           {user.name}
         </Link>

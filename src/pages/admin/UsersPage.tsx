@@ -88,10 +88,11 @@ export function UsersPage() {
           ) : users.isError ? (
             <ErrorState error={users.error} onRetry={() => void users.refetch()} />
           ) : (
-            <div className="mt-4 overflow-x-auto rounded-lg border border-rule bg-white shadow-xs">
-              <table className="w-full min-w-[44rem] text-left text-sm">
+            <div className="relative mt-4 overflow-x-auto rounded-lg border border-rule bg-white shadow-xs">
+              {/* A table on wide screens; on narrow screens each row becomes a small stacked card. */}
+              <table className="w-full text-left text-sm max-md:block md:min-w-[44rem]">
                 <caption className="sr-only">Users of this Tocsin office</caption>
-                <thead className="border-b border-rule bg-paper text-xs tracking-wide text-ink-soft uppercase">
+                <thead className="border-b border-rule bg-paper text-xs tracking-wide text-ink-soft uppercase max-md:hidden">
                   <tr>
                     <th scope="col" className="px-4 py-3 font-semibold">Name</th>
                     <th scope="col" className="px-4 py-3 font-semibold">Role</th>
@@ -100,24 +101,27 @@ export function UsersPage() {
                     <th scope="col" className="px-4 py-3 font-semibold"><span className="sr-only">Actions</span></th>
                   </tr>
                 </thead>
-                <tbody className="divide-y divide-rule">
+                <tbody className="divide-y divide-rule max-md:block">
                   {users.data.map((u) => {
                     const isMe = u.id === me?.id;
                     return (
-                      <tr key={u.id} data-testid={`user-row-${u.email}`} className={u.active ? '' : 'bg-paper/60 text-ink-soft'}>
-                        <th scope="row" className="px-4 py-3 font-normal">
+                      <tr key={u.id} data-testid={`user-row-${u.email}`} className={`max-md:grid max-md:grid-cols-[auto_1fr] max-md:items-center max-md:gap-x-4 max-md:gap-y-2 max-md:px-4 max-md:py-4 ${u.active ? '' : 'bg-paper/60 text-ink-soft'}`}>
+                        <th scope="row" className="px-4 py-3 font-normal max-md:col-span-2 max-md:p-0">
                           <span className="block font-medium text-ink">
                             {u.name}
                             {isMe && <span className="ml-1 text-ink-soft">(you)</span>}
                           </span>
-                          <span className="block text-ink-soft break-all">{u.email}</span>
+                          <span className="block break-words text-ink-soft">{u.email}</span>
                         </th>
-                        <td className="px-4 py-3" data-testid="role">{ROLE_LABELS[u.role]}</td>
-                        <td className="px-4 py-3"><StatusBadge user={u} /></td>
-                        <td className="px-4 py-3 whitespace-nowrap tabular-nums">{formatUtc(u.lastSignInAt)}</td>
-                        <td className="px-4 py-3">
+                        <td className="px-4 py-3 max-md:p-0" data-testid="role">{ROLE_LABELS[u.role]}</td>
+                        <td className="px-4 py-3 max-md:p-0"><StatusBadge user={u} /></td>
+                        <td className="px-4 py-3 whitespace-nowrap tabular-nums max-md:col-span-2 max-md:p-0 max-md:text-ink-soft">
+                          <span className="md:hidden">Last sign-in: </span>
+                          {formatUtc(u.lastSignInAt)}
+                        </td>
+                        <td className="px-4 py-3 max-md:col-span-2 max-md:p-0 max-md:empty:hidden">
                           {canUpdate && !isMe && (
-                            <div className="flex flex-wrap justify-end gap-2">
+                            <div className="flex flex-wrap gap-2 md:justify-end">
                               {u.active && u.invited && (
                                 <Button
                                   variant="quiet"
