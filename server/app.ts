@@ -9,11 +9,8 @@ import { apiNotFound, errorHandler } from './middleware/errorHandler';
 import { authorize } from './middleware/authorize';
 import { createCsrf } from './middleware/csrf';
 import { currentUser } from './middleware/currentUser';
-import { accountRouter } from './routes/account';
-import { healthRouter } from './routes/health';
-import { invitationsRouter } from './routes/invitations';
-import { SESSION_COOKIE, sessionRouter } from './routes/session';
-import { usersRouter } from './routes/users';
+import { apiRouters } from './routes';
+import { SESSION_COOKIE } from './routes/session';
 import { createServices, type ServiceDeps, type Services } from './services';
 
 export interface AppDeps extends ServiceDeps {
@@ -69,11 +66,7 @@ export function buildApp(deps: AppDeps): { app: Express; services: Services } {
   });
   api.use(authorize());
   api.use(csrf.protect);
-  api.use(healthRouter(csrf));
-  api.use(sessionRouter(services, csrf));
-  api.use(accountRouter(services));
-  api.use(usersRouter(services));
-  api.use(invitationsRouter(services));
+  for (const router of apiRouters(services, csrf)) api.use(router);
   api.use(apiNotFound);
   api.use(errorHandler(deps.logError));
   app.use('/api', api);

@@ -1,0 +1,14 @@
+// The routers of the API, mounted under /api by app.ts. A new resource adds its router here and
+// its routes to shared/routes.ts (without a table entry its handler can never be reached).
+import type { Router } from 'express';
+import type { Csrf } from '../middleware/csrf';
+import type { Services } from '../services';
+import { accountRouter } from './account';
+import { healthRouter } from './health';
+import { invitationsRouter } from './invitations';
+import { sessionRouter } from './session';
+import { usersRouter } from './users';
+
+export function apiRouters(services: Services, csrf: Csrf): Router[] {
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services)];
+}
