@@ -29,6 +29,8 @@ export function fieldErrors(error: unknown): Record<string, string> {
   if (!(error instanceof ApiError) || typeof error.details !== 'object' || error.details === null) return {};
   const out: Record<string, string> = {};
   const details = error.details as Record<string, unknown>;
+  // A refusal about one field: { field: 'currentPassword' } carries the error's own message.
+  if (typeof details.field === 'string') out[details.field] = error.message;
   // Tocsin's validation errors: { issues: [{ in, path: 'dotted.path', message }] } (shared/schemas/errors.ts).
   if (Array.isArray(details.issues)) {
     for (const issue of details.issues as Array<{ path?: unknown; message?: unknown }>) {

@@ -189,3 +189,52 @@ describe('sign-in refusal', () => {
     await context.close();
   });
 });
+
+describe('account', () => {
+  it('changes the own password: refuses a wrong current password and a mismatch, then the new one works', async () => {
+    const context = await newContext(browser, server.url);
+    const page = await context.newPage();
+    const errors = watchPageErrors(page, [401, 422]); // 422: the wrong current password, on purpose
+    const { email, password } = demoCredentials('liaison');
+    const newPassword = 'grey-gull-over-the-sound-7';
+    await signIn(page, email, password);
+    await page.waitForURL((u) => u.pathname === '/');
+    await page.getByRole('link', { name: /Change your password/ }).click();
+    expect(await waitForHeading(page, 'Your account')).toBe('Your account');
+
+    const current = page.getByLabel('Current password');
+    const fresh = page.getByLabel('New password', { exact: true });
+    const repeat = page.getByLabel('Repeat the new password');
+    const submit = page.getByRole('button', { name: 'Change password' });
+
+    // Mismatch is caught in the form.
+    await current.fill(password);
+    await fresh.fill(newPassword);
+    await repeat.fill(newPassword + 'x');
+    await submit.click();
+    expect(await isVisible(page.getByText('The two new passwords differ'))).toBe(true);
+    expect(await repeat.getAttribute('aria-invalid')).toBe('true');
+
+    // A wrong current password is refused by the server and shown at that field.
+    await current.fill('not-my-password-at-all');
+    await repeat.fill(newPassword);
+    await submit.click();
+    await page.getByText('The current password is not correct').waitFor();
+    expect(await current.getAttribute('aria-invalid')).toBe('true');
+    await screenshot(page, 'account-wrong-current-password');
+
+    await current.fill(password);
+    await submit.click();
+    await page.getByText('Your password has been changed.').waitFor();
+
+    // The old password no longer signs in; the new one does.
+    await page.getByRole('button', { name: 'Sign out' }).click();
+    await page.waitForURL((u) => u.pathname === '/sign-in');
+    await signIn(page, email, password);
+    expect(await signInError(page)).not.toBe('');
+    await signIn(page, email, newPassword);
+    await page.waitForURL((u) => u.pathname === '/');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});

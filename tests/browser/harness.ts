@@ -148,14 +148,19 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   return file;
 }
 
-/** Collects uncaught page errors and console errors so a test can assert there were none. */
-export function watchPageErrors(page: Page): string[] {
+/**
+ * Collects uncaught page errors and console errors so a test can assert there were none.
+ * Chromium logs every 4xx answer as a console error; `expectedStatuses` lists the answers the
+ * test provokes on purpose (401 for GET /api/session when signed out and for a refused sign-in).
+ */
+export function watchPageErrors(page: Page, expectedStatuses: number[] = [401]): string[] {
   const errors: string[] = [];
   page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
   page.on('console', (m) => {
-    // Chromium logs every 4xx answer as a console error; a 401 is the expected answer to
-    // GET /api/session when signed out and to a wrong password, so those are not faults.
-    if (m.type() === 'error' && !/status of 401/.test(m.text())) errors.push(`console: ${m.text()}`);
+    if (m.type() !== 'error') return;
+    const status = /status of (\d{3})/.exec(m.text());
+    if (status && expectedStatuses.includes(Number(status[1]))) return;
+    errors.push(`console: ${m.text()}`);
   });
   return errors;
 }
