@@ -1,6 +1,7 @@
 import { Link } from 'react-router';
 import { ROLE_LABELS } from '../../../shared/roles';
 import { allowedTasks } from '../../auth/areas';
+import { ROLE_DESCRIPTIONS } from '../../auth/roleDescriptions';
 import { useAuth } from '../../auth/AuthProvider';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { PageHeader } from '../../components/ui';
@@ -18,7 +19,8 @@ export function HomePage() {
         title={`Good to see you, ${firstName}`}
         intro={
           <p>
-            Signed in as <strong className="font-semibold text-ink">{ROLE_LABELS[user.role]}</strong> ({user.email}).
+            Signed in as <strong className="font-semibold text-ink">{ROLE_LABELS[user.role]}</strong> ({user.email}).{' '}
+            {ROLE_DESCRIPTIONS[user.role]}
           </p>
         }
       />
