@@ -64,12 +64,21 @@ export async function ensureClientBuilt(): Promise<void> {
     if (!clientIsStale()) return; // another test file built it while we waited
     const { build } = await import('vite');
     const tmp = path.join(ROOT, `dist/client.tmp-${process.pid}`);
-    await build({
-      root: ROOT,
-      configFile: path.join(ROOT, 'vite.config.ts'),
-      logLevel: 'warn',
-      build: { outDir: tmp, emptyOutDir: true },
-    });
+    // Vitest sets NODE_ENV=test, which would make Vite emit React's development build; the
+    // bundle in dist/client is also the one `npm start` serves, so build it for production.
+    const nodeEnv = process.env.NODE_ENV;
+    process.env.NODE_ENV = 'production';
+    try {
+      await build({
+        root: ROOT,
+        configFile: path.join(ROOT, 'vite.config.ts'),
+        mode: 'production',
+        logLevel: 'warn',
+        build: { outDir: tmp, emptyOutDir: true },
+      });
+    } finally {
+      process.env.NODE_ENV = nodeEnv;
+    }
     const old = path.join(ROOT, `dist/client.old-${process.pid}`);
     if (existsSync(CLIENT_DIR)) renameSync(CLIENT_DIR, old);
     renameSync(tmp, CLIENT_DIR);
