@@ -19,7 +19,7 @@ import { AU_KM, DAY_S, GM_KM3_S2 } from '../constants';
 import { brentRoot } from './brent';
 import { bPlaneFromState } from './bplane';
 import { defaultEphemeris } from './ephemeris-source';
-import { propagate } from './propagate';
+import { propagate, type ImpactEvent } from './propagate';
 import {
   bodyIndex,
   type DynamicsBody,
@@ -71,35 +71,62 @@ const AUD_TO_KMS = AU_KM / DAY_S;
 /** Time tolerance of the minimum search: 1e-6 d = 0.0864 s. */
 const T_TOL_DAYS = 1e-6;
 
-export function findCloseApproaches(opts: FindCloseApproachesOptions): CloseApproach[] {
-  const bodies = opts.bodies ?? ['earth'];
-  const maxAu = opts.maxAu ?? 0.05;
-  const model = opts.model ?? 'n-body';
-  const from = opts.fromTdbDays, until = opts.untilTdbDays;
-  const eph = opts.ephemeris ?? defaultEphemeris(from, until);
-  const dir = until >= from ? 1 : -1;
-  const idx = bodies.map(bodyIndex);
-  const ps = new Float64Array(6);
-  const qs = new Float64Array(6);
-  const found: CloseApproach[] = [];
+/**
+ * Close-approach monitor for ONE trajectory, fed step by step (after every accepted integration step) with the
+ * step's dense output. findCloseApproaches uses it for a single object; batch runs (server/engine/assess/batch.ts)
+ * keep one per clone. Approaches found so far are in `found` (in the order found; sort by time when done).
+ */
+export class ApproachMonitor {
+  readonly found: CloseApproach[] = [];
+  private readonly idx: number[];
+  private readonly ps = new Float64Array(6);
+  private readonly qs = new Float64Array(6);
+  /** Per body: f and rho at the previous sample (in integration order). */
+  private readonly prevF: Float64Array;
+  private readonly prevRho: Float64Array;
+  private first = true;
+  private lastRho = 0;
+  private lastF = 0;
 
-  const relAt = (j: number, t: number, stateAt: (t: number, out: Float64Array) => void) => {
+  constructor(
+    private readonly eph: PlanetEphemeris,
+    private readonly bodies: DynamicsBody[],
+    private readonly maxAu: number,
+    /** +1 forward in time, -1 backward. */
+    private readonly dir: number,
+  ) {
+    this.idx = bodies.map(bodyIndex);
+    this.prevF = new Float64Array(bodies.length);
+    this.prevRho = new Float64Array(bodies.length);
+  }
+
+  /** Sets lastRho, lastF for body j at t (no allocation). */
+  private relAt(j: number, t: number, stateAt: (t: number, out: Float64Array) => void): void {
+    const qs = this.qs, ps = this.ps;
     stateAt(t, qs);
-    eph.stateInto(idx[j], t, ps);
+    this.eph.stateInto(this.idx[j], t, ps);
     const dx = qs[0] - ps[0], dy = qs[1] - ps[1], dz = qs[2] - ps[2];
     const du = qs[3] - ps[3], dv = qs[4] - ps[4], dw = qs[5] - ps[5];
-    return { rho: Math.hypot(dx, dy, dz), f: dx * du + dy * dv + dz * dw };
-  };
+    this.lastRho = Math.sqrt(dx * dx + dy * dy + dz * dz);
+    this.lastF = dx * du + dy * dv + dz * dw;
+  }
 
-  const record = (body: DynamicsBody, j: number, t: number, stateAt: (t: number, out: Float64Array) => void, extra: { impact: boolean; windowEdge: boolean }) => {
+  private fAt(j: number, t: number, stateAt: (t: number, out: Float64Array) => void): number {
+    this.relAt(j, t, stateAt);
+    return this.lastF;
+  }
+
+  /** Record the approach to body `body` at t from the dense output. */
+  record(body: DynamicsBody, t: number, stateAt: (t: number, out: Float64Array) => void, extra: { impact: boolean; windowEdge: boolean }): void {
+    const qs = this.qs, ps = this.ps;
     stateAt(t, qs);
-    eph.stateInto(j, t, ps);
+    this.eph.stateInto(bodyIndex(body), t, ps);
     const rel: Vec3 = [(qs[0] - ps[0]) * AU_KM, (qs[1] - ps[1]) * AU_KM, (qs[2] - ps[2]) * AU_KM];
     const relV: Vec3 = [(qs[3] - ps[3]) * AUD_TO_KMS, (qs[4] - ps[4]) * AUD_TO_KMS, (qs[5] - ps[5]) * AUD_TO_KMS];
     const vP: Vec3 = [ps[3] * AUD_TO_KMS, ps[4] * AUD_TO_KMS, ps[5] * AUD_TO_KMS];
     const mu = GM_KM3_S2[body];
     const bp = bPlaneFromState(rel, relV, mu, vP);
-    found.push({
+    this.found.push({
       body,
       tdbDays: t,
       distanceKm: Math.hypot(rel[0], rel[1], rel[2]),
@@ -113,25 +140,19 @@ export function findCloseApproaches(opts: FindCloseApproachesOptions): CloseAppr
       relVelocityKmS: relV,
       planetVelocityKmS: vP,
     });
-  };
+  }
 
-  // Per body: f and rho at the previous sample (in integration order).
-  const prevF = new Float64Array(bodies.length);
-  const prevRho = new Float64Array(bodies.length);
-  let first = true;
-  let last: StepInfo | null = null;
-
-  const onStep = (step: StepInfo) => {
-    const { t0, t1, stateAt } = step;
-    last = step;
-    if (first) {
-      first = false;
+  /** Scan one accepted step [t0, t1] (t1 may be truncated at an impact) using its dense output. */
+  onStep(t0: number, t1: number, stateAt: (t: number, out: Float64Array) => void): void {
+    const { bodies, maxAu, dir, prevF, prevRho } = this;
+    if (this.first) {
+      this.first = false;
       for (let j = 0; j < bodies.length; j++) {
-        const { rho, f } = relAt(j, t0, stateAt);
-        prevF[j] = f;
-        prevRho[j] = rho;
+        this.relAt(j, t0, stateAt);
+        prevF[j] = this.lastF;
+        prevRho[j] = this.lastRho;
         // Minimum at the window start: distance increasing (in the integration direction) from the start.
-        if (rho < maxAu && f * dir > 0) record(bodies[j], idx[j], t0, stateAt, { impact: false, windowEdge: true });
+        if (this.lastRho < maxAu && this.lastF * dir > 0) this.record(bodies[j], t0, stateAt, { impact: false, windowEdge: true });
       }
     }
     for (let j = 0; j < bodies.length; j++) {
@@ -141,20 +162,53 @@ export function findCloseApproaches(opts: FindCloseApproachesOptions): CloseAppr
       let ta = t0;
       for (let k = 1; k <= m; k++) {
         const tb = k === m ? t1 : t0 + ((t1 - t0) * k) / m;
-        const { rho, f } = relAt(j, tb, stateAt);
+        this.relAt(j, tb, stateAt);
+        const rho = this.lastRho, f = this.lastF;
         const fa = prevF[j];
         // Minimum in increasing time: f(earlier) < 0 < f(later).
         const fEarly = dir > 0 ? fa : f;
         const fLate = dir > 0 ? f : fa;
         if (fEarly < 0 && fLate > 0) {
-          const tm = brentRoot((t) => relAt(j, t, stateAt).f, ta, tb, T_TOL_DAYS);
-          if (relAt(j, tm, stateAt).rho < maxAu) record(bodies[j], idx[j], tm, stateAt, { impact: false, windowEdge: false });
+          const tm = brentRoot((t) => this.fAt(j, t, stateAt), ta, tb, T_TOL_DAYS);
+          this.relAt(j, tm, stateAt);
+          if (this.lastRho < maxAu) this.record(bodies[j], tm, stateAt, { impact: false, windowEdge: false });
         }
         prevF[j] = f;
         prevRho[j] = rho;
         ta = tb;
       }
     }
+  }
+
+  /**
+   * End of the trajectory: with an impact, record it (at the surface-crossing time, from the last step's dense
+   * output); otherwise record minima still in progress at the window end (distance still decreasing).
+   */
+  finish(lastT1: number | null, stateAt: ((t: number, out: Float64Array) => void) | null, impact: ImpactEvent | null): void {
+    if (!stateAt || lastT1 === null) return;
+    if (impact) {
+      this.record(impact.body, impact.tdbDays, stateAt, { impact: true, windowEdge: false });
+      return;
+    }
+    for (let j = 0; j < this.bodies.length; j++) {
+      if (this.prevRho[j] < this.maxAu && this.prevF[j] * this.dir < 0) this.record(this.bodies[j], lastT1, stateAt, { impact: false, windowEdge: true });
+    }
+  }
+}
+
+export function findCloseApproaches(opts: FindCloseApproachesOptions): CloseApproach[] {
+  const bodies = opts.bodies ?? ['earth'];
+  const maxAu = opts.maxAu ?? 0.05;
+  const model = opts.model ?? 'n-body';
+  const from = opts.fromTdbDays, until = opts.untilTdbDays;
+  const eph = opts.ephemeris ?? defaultEphemeris(from, until);
+  const dir = until >= from ? 1 : -1;
+  const monitor = new ApproachMonitor(eph, bodies, maxAu, dir);
+  let last: StepInfo | null = null;
+
+  const onStep = (step: StepInfo) => {
+    last = step;
+    monitor.onStep(step.t0, step.t1, step.stateAt);
   };
 
   const res = propagate({
@@ -171,15 +225,8 @@ export function findCloseApproaches(opts: FindCloseApproachesOptions): CloseAppr
   });
 
   const lastStep = last as StepInfo | null;
-  if (res.impact && lastStep) {
-    const j = bodyIndex(res.impact.body);
-    record(res.impact.body, j, res.impact.tdbDays, lastStep.stateAt, { impact: true, windowEdge: false });
-  } else if (lastStep) {
-    // Minimum at the window end: distance still decreasing at the end.
-    for (let j = 0; j < bodies.length; j++) {
-      if (prevRho[j] < maxAu && prevF[j] * dir < 0) record(bodies[j], idx[j], lastStep.t1, lastStep.stateAt, { impact: false, windowEdge: true });
-    }
-  }
+  monitor.finish(lastStep ? lastStep.t1 : null, lastStep ? lastStep.stateAt : null, res.impact);
+  const found = monitor.found;
   found.sort((a, b) => (a.tdbDays - b.tdbDays) * dir);
   return found;
 }

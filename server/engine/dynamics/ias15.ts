@@ -152,6 +152,22 @@ export class Ias15 {
     this.dtLastSuccess = 0;
   }
 
+  /**
+   * Replace the state of one particle (batches: a clone that has stopped, e.g. at an impact, is parked and no
+   * longer evolves). Clears that particle's compensation terms and acceleration polynomial so that the next
+   * step starts afresh for it; the other particles are untouched.
+   */
+  resetParticle(particle: number, x: ArrayLike<number>, v: ArrayLike<number>): void {
+    for (let c = 0; c < 3; c++) {
+      const k = 3 * particle + c;
+      this.x[k] = x[c]; this.v[k] = v[c]; this.csx[k] = 0; this.csv[k] = 0;
+      for (let j = 0; j < 7; j++) {
+        this.b[j][k] = 0; this.g[j][k] = 0; this.e[j][k] = 0; this.br[j][k] = 0; this.er[j][k] = 0;
+      }
+    }
+    this.aValid = false;
+  }
+
   /** Current time, tdbDays. */
   get tdbDays(): number {
     return this.epoch + this.offset;

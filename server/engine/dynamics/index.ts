@@ -8,7 +8,7 @@ export { NBodyForce, TwoBodyForce, PERTURBER_GM_AU3_D2 } from './forces';
 export { gWaterIce, gInverseSquare, gOfR, addNonGravInto } from './nongrav';
 export { brentRoot } from './brent';
 export { defaultEphemeris } from './ephemeris-source';
-export { findCloseApproaches } from './approaches';
+export { findCloseApproaches, ApproachMonitor } from './approaches';
 export type { CloseApproach, FindCloseApproachesOptions } from './approaches';
 export { bPlaneFromState, captureRadiusKm } from './bplane';
 export type { BPlane } from './bplane';

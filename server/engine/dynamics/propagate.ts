@@ -152,6 +152,7 @@ export class ImpactMonitor {
   private readonly ps = new Float64Array(6);
   private readonly qs = new Float64Array(6);
   private readonly rhoStart: Float64Array;
+  private readonly q = new Float64Array(6);
 
   constructor(
     private readonly eph: PlanetEphemeris,
@@ -191,7 +192,7 @@ export class ImpactMonitor {
   check(t0: number, t1: number, xEnd: ArrayLike<number>, stateAt: (t: number, out: Float64Array) => void): ImpactEvent | null {
     let best: ImpactEvent | null = null;
     const tolDays = 1e-4 / 86400; // 0.1 ms
-    const q = new Float64Array(6);
+    const q = this.q;
     for (let j = 0; j < this.idx.length; j++) {
       const R = this.radiusAu[j];
       const rho0 = this.rhoStart[j];
