@@ -2,8 +2,9 @@
 // file with `npm run db:generate` (drizzle-kit) and never edited by hand.
 // Times are stored as integer milliseconds since the Unix epoch (UTC); names end in `At`.
 import { sql } from 'drizzle-orm';
-import { index, integer, sqliteTable, text } from 'drizzle-orm/sqlite-core';
+import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { ROLES } from '../../shared/roles';
+import { FORCE_MODELS, SOLUTION_SOURCE_KINDS, TRACKED_OBJECT_KINDS } from '../../shared/schemas/objects';
 
 const nowMs = sql`(cast(unixepoch('subsecond') * 1000 as integer))`;
 
@@ -81,7 +82,83 @@ export const settings = sqliteTable('settings', {
   value: text('value').notNull(),
 });
 
+/**
+ * Objects the office tracks. The summary columns (latest solution, next close approach, risk figures, last run)
+ * are kept on the row so the list can be sorted and paged in SQL at 10 000 objects; each sort column has an
+ * index (SQLite appends the rowid to every index, so ORDER BY col, id is served by the index on col).
+ * The risk columns stay null until assessment runs exist and write them.
+ */
+export const trackedObjects = sqliteTable(
+  'tracked_objects',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    designation: text('designation').notNull().unique(),
+    name: text('name'),
+    kind: text('kind', { enum: TRACKED_OBJECT_KINDS }).notNull(),
+    notes: text('notes').notNull().default(''),
+    watch: integer('watch', { mode: 'boolean' }).notNull().default(false),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    solutionCount: integer('solution_count').notNull().default(0),
+    latestSolutionVersion: integer('latest_solution_version'),
+    latestSolutionAt: integer('latest_solution_at', { mode: 'timestamp_ms' }),
+    nextCloseApproachAt: integer('next_close_approach_at', { mode: 'timestamp_ms' }),
+    maxImpactProbability: real('max_impact_probability'),
+    cumulativePalermo: real('cumulative_palermo'),
+    maxTorino: integer('max_torino'),
+    lastRunAt: integer('last_run_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [
+    index('tracked_objects_name_idx').on(t.name),
+    index('tracked_objects_kind_idx').on(t.kind),
+    index('tracked_objects_watch_idx').on(t.watch),
+    index('tracked_objects_created_at_idx').on(t.createdAt),
+    index('tracked_objects_latest_solution_at_idx').on(t.latestSolutionAt),
+    index('tracked_objects_next_close_approach_at_idx').on(t.nextCloseApproachAt),
+    index('tracked_objects_max_impact_probability_idx').on(t.maxImpactProbability),
+    index('tracked_objects_cumulative_palermo_idx').on(t.cumulativePalermo),
+    index('tracked_objects_max_torino_idx').on(t.maxTorino),
+    index('tracked_objects_last_run_at_idx').on(t.lastRunAt),
+  ],
+);
+
+/**
+ * Orbit-solution versions of an object: immutable once written (the service only inserts), numbered 1, 2, ...
+ * per object. `orbitJson` is the engine's NormalizedOrbit, `classificationJson` the ClassificationSummary
+ * (shared/schemas/objects.ts); `rawText` is the text exactly as received and `inputSha256` its hash.
+ */
+export const orbitSolutions = sqliteTable(
+  'orbit_solutions',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    version: integer('version').notNull(),
+    sourceKind: text('source_kind', { enum: SOLUTION_SOURCE_KINDS }).notNull(),
+    fileName: text('file_name'),
+    rawText: text('raw_text').notNull(),
+    inputSha256: text('input_sha256').notNull(),
+    epochTdbDays: real('epoch_tdb_days').notNull(),
+    observationArcDays: real('observation_arc_days'),
+    observationCount: integer('observation_count'),
+    fitRmsArcsec: real('fit_rms_arcsec'),
+    forceModel: text('force_model', { enum: FORCE_MODELS }).notNull(),
+    /** Comma-separated non-gravitational terms in the model, e.g. "A1,A2" ('' for gravity only). */
+    nonGravTerms: text('non_grav_terms').notNull().default(''),
+    remark: text('remark'),
+    orbitJson: text('orbit_json').notNull(),
+    classificationJson: text('classification_json').notNull(),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [uniqueIndex('orbit_solutions_object_version_idx').on(t.objectId, t.version)],
+);
+
 export type UserRow = typeof users.$inferSelect;
 export type NewUserRow = typeof users.$inferInsert;
 export type InvitationRow = typeof invitations.$inferSelect;
 export type MailOutboxRow = typeof mailOutbox.$inferSelect;
+export type TrackedObjectRow = typeof trackedObjects.$inferSelect;
+export type OrbitSolutionRow = typeof orbitSolutions.$inferSelect;
