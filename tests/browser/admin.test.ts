@@ -82,6 +82,7 @@ describe('admin users', () => {
     const userErrors = watchPageErrors(user);
     await user.goto(`/invite/${token}`);
     await user.getByText(`Welcome, ${invitee.name}`).waitFor();
+    await screenshot(user, 'invite-set-password');
     // Too short a password is refused in the form (the API requires at least 12 characters).
     await user.getByLabel('Password', { exact: true }).fill('short');
     await user.getByLabel('Repeat the password').fill('short');
@@ -91,6 +92,7 @@ describe('admin users', () => {
     await user.getByLabel('Repeat the password').fill(invitee.password);
     await user.getByRole('button', { name: 'Set password' }).click();
     await user.getByText('Your password is set').waitFor();
+    await screenshot(user, 'invite-done');
     await user.getByRole('link', { name: 'Go to sign-in' }).click();
     await user.waitForURL('**/sign-in?email=*');
     expect(await user.getByLabel('E-mail address').inputValue()).toBe(invitee.email);

@@ -55,7 +55,7 @@ export function AccountPage() {
             </div>
             <div>
               <dt className="text-ink-soft">E-mail</dt>
-              <dd className="font-medium break-all">{user.email}</dd>
+              <dd className="font-medium break-words">{user.email}</dd>
             </div>
             <div>
               <dt className="text-ink-soft">Role</dt>

@@ -61,7 +61,7 @@ export function InvitePage() {
   return shell(
     <Card>
       <p className="text-ink">
-        Welcome, <strong>{invitation.data.name}</strong>. Choose a password for <strong className="break-all">{invitation.data.email}</strong>.
+        Welcome, <strong>{invitation.data.name}</strong>. Choose a password for <strong className="break-words">{invitation.data.email}</strong>.
       </p>
       <form onSubmit={onSubmit} className="mt-5 space-y-4" noValidate>
         {accept.isError && Object.keys(serverErrors).length === 0 && <Notice tone="error">{errorMessage(accept.error)}</Notice>}
