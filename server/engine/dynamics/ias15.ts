@@ -70,6 +70,11 @@ export type Ias15Options = {
   fixedIterations?: number;
   /** Smallest |step| in days before giving up (step collapse guard). */
   minStepDays?: number;
+  /**
+   * Only the first `controlParticles` particles set the step size (default: all). Variational particles (partials
+   * that start at zero) must not, as in REBOUND where variational particles do not enter the step criterion.
+   */
+  controlParticles?: number;
 };
 
 const SAFETY = 0.25;
@@ -116,6 +121,7 @@ export class Ias15 {
   private dtLastSuccess = 0;
   private readonly fixedIterations: number;
   private readonly minStep: number;
+  private readonly controlN3: number;
 
   constructor(
     readonly force: ForceModel,
@@ -127,6 +133,7 @@ export class Ias15 {
     this.epsilon = opts.epsilon ?? 1e-9;
     this.fixedIterations = opts.fixedIterations ?? 0;
     this.minStep = opts.minStepDays ?? 1e-9;
+    this.controlN3 = 3 * Math.min(particles, opts.controlParticles ?? particles);
     const mk = () => new Float64Array(n3);
     const mk7 = () => Array.from({ length: 7 }, mk);
     this.x = mk(); this.v = mk(); this.a = mk(); this.csx = mk(); this.csv = mk();
@@ -187,7 +194,7 @@ export class Ias15 {
   private initialStep(sign: number): number {
     // Orbital time-scale guess: a few per cent of |r|/|v| of the fastest particle, refined by the controller.
     let best = Infinity;
-    for (let o = 0; o < this.n3; o += 3) {
+    for (let o = 0; o < this.controlN3; o += 3) {
       const r = Math.hypot(this.x[o], this.x[o + 1], this.x[o + 2]);
       const s = Math.hypot(this.v[o], this.v[o + 1], this.v[o + 2]);
       if (s > 0) best = Math.min(best, (0.01 * r) / s);
@@ -296,7 +303,7 @@ export class Ias15 {
 
       // New step size: Pham, Rein & Spiegel (2024) criterion, as in REBOUND's IAS15 ("PRS23").
       let minTimescale2 = Infinity;
-      for (let o = 0; o < n3; o += 3) {
+      for (let o = 0; o < this.controlN3; o += 3) {
         let y2 = 0, y3 = 0, y4 = 0;
         for (let k = o; k < o + 3; k++) {
           const aEnd = a[k] + b0[k] + b1[k] + b2[k] + b3[k] + b4[k] + b5[k] + b6[k];
