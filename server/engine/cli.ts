@@ -1,0 +1,339 @@
+/**
+ * Tocsin engine command line (issue 3 item 8). `npm run -s engine -- <command> [args]`
+ *
+ * Prints exactly ONE JSON document on stdout. On failure prints {"error":{"code","message"[,"issues"]}} on stderr and
+ * exits non-zero: 2 for usage errors (unknown command or option, malformed epoch or number), 1 for everything else
+ * (unreadable or invalid orbit file, time outside the supported range, feature not available, computation failure).
+ *
+ * Commands (output keys are fixed; other tools read them):
+ *   ephemeris --body <body> --at EPOCH [--center sun|earth]
+ *       -> {"body","center","frame":"ICRF","epochTdbJd","positionKm","velocityKmS"}
+ *          full-series ephemeris (EPH seriesState); heliocentric, or geocentric with --center earth (meant for the Moon)
+ *   propagate FILE --to EPOCH [--model n-body|two-body]
+ *       -> {"object","model","epochTdbJd","center":"sun","frame":"ICRF","positionKm","velocityKmS","impact"}
+ *          ("impact" is null, or {"body","epochTdbJd","utc"} when the trajectory reached a surface and stopped there)
+ *   approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,...]]
+ *       -> {"object","approaches":[{"body","epochTdbJd","utc","utcPredicted","distanceKm","relativeSpeedKmS",
+ *           "vInfinityKmS","bPlane":{"xiKm","zetaKm"},"impact"}]}
+ *   classify FILE
+ *       -> {"object","eccentricity","eccentricitySigma","unboundSignificance","bound","vInfinityKmS","perihelionAu"}
+ *   assess, fit: reserved (Engine II risk assessment; orbit fitting later) — currently answer NOT_AVAILABLE.
+ *   help -> {"commands": {...}, "epochForms": [...]}
+ *
+ * FILE is a CCSDS OPM 2.0 (KVN) or a Tocsin JSON orbit solution (shared/schemas/orbit.ts).
+ * EPOCH is "2030-01-01T00:00:00Z" (UTC), "TDB:2030-01-01T00:00:00" or "JD:2462502.5" (TDB).
+ * `utc` strings come from time.ts; past the leap-second table they are predicted (utcPredicted = true).
+ */
+import { readFileSync } from 'node:fs';
+import { pathToFileURL } from 'node:url';
+import { parseArgs } from 'node:util';
+import { AU_KM, DAY_S } from './constants';
+import { EpochFormatError, TimeScaleError, parseEpoch, tdbJdFromDays, utcFromTdbDays } from './time';
+import { OrbitInputError } from './input/errors';
+import type { NormalizedOrbit } from '../../shared/schemas/orbit';
+import type { Vec3 } from './vec';
+
+export type ErrorCode =
+  | 'USAGE'
+  | 'INVALID_EPOCH'
+  | 'INVALID_INPUT'
+  | 'FILE_NOT_READABLE'
+  | 'OUT_OF_RANGE'
+  | 'NOT_AVAILABLE'
+  | 'COMPUTATION_FAILED';
+
+export class CliError extends Error {
+  constructor(
+    readonly code: ErrorCode,
+    message: string,
+    readonly exitCode: 1 | 2 = 1,
+    readonly issues?: { where: string; message: string }[],
+  ) {
+    super(message);
+    this.name = 'CliError';
+  }
+}
+
+const AUD_TO_KMS = AU_KM / DAY_S;
+const EPOCH_FORMS = ['2030-01-01T00:00:00Z (UTC)', 'TDB:2030-01-01T00:00:00 (TDB)', 'JD:2462502.5 (TDB Julian date)'];
+const BODIES = ['mercury', 'venus', 'earth', 'moon', 'mars', 'jupiter', 'saturn', 'uranus', 'neptune'] as const;
+type Body = (typeof BODIES)[number];
+
+const USAGE: Record<string, string> = {
+  ephemeris: 'ephemeris --body <mercury|venus|earth|moon|mars|jupiter|saturn|uranus|neptune> --at EPOCH [--center sun|earth]',
+  propagate: 'propagate FILE --to EPOCH [--model n-body|two-body]',
+  approaches: 'approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,venus,mars]]',
+  classify: 'classify FILE',
+  assess: 'assess FILE ... (reserved: Engine II risk assessment, not available yet)',
+  fit: 'fit ... (reserved: orbit determination from astrometry, not available yet)',
+  help: 'help',
+};
+
+function usageError(message: string): CliError {
+  return new CliError('USAGE', `${message}. Usage: npm run -s engine -- ${Object.values(USAGE).join(' | ')}`, 2);
+}
+
+function epochArg(name: string, value: string | undefined): number {
+  if (value === undefined) throw usageError(`missing --${name} EPOCH`);
+  try {
+    return parseEpoch(value).tdbDays;
+  } catch (err) {
+    if (err instanceof EpochFormatError) throw new CliError('INVALID_EPOCH', `--${name}: ${err.message}`, 2);
+    if (err instanceof TimeScaleError) throw new CliError('OUT_OF_RANGE', `--${name}: ${err.message}`, 1);
+    throw err;
+  }
+}
+
+function positional(args: string[], what: string): string {
+  if (args.length === 0) throw usageError(`missing ${what}`);
+  if (args.length > 1) throw usageError(`unexpected extra argument ${JSON.stringify(args[1])}`);
+  return args[0];
+}
+
+function parse(argv: string[], options: Record<string, { type: 'string' }>) {
+  try {
+    return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
+  } catch (err) {
+    throw usageError((err as Error).message.replace(/\.$/, ''));
+  }
+}
+
+async function loadOrbitFile(path: string): Promise<NormalizedOrbit> {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (err) {
+    throw new CliError('FILE_NOT_READABLE', `cannot read ${path}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
+  }
+  const { loadOrbitSolution } = await import('./input/solution');
+  try {
+    return loadOrbitSolution(text);
+  } catch (err) {
+    if (err instanceof OrbitInputError) throw new CliError('INVALID_INPUT', `${path}: ${err.message}`, 1, err.issues);
+    throw err;
+  }
+}
+
+/** Import a sibling engine module; a missing module becomes a NOT_AVAILABLE error, never fake output. */
+async function needModule<T>(what: string, load: () => Promise<T>): Promise<T> {
+  try {
+    return await load();
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    if (code === 'ERR_MODULE_NOT_FOUND' || /Cannot find module/.test((err as Error).message)) {
+      throw new CliError('NOT_AVAILABLE', `${what} is not available in this build (module not found)`);
+    }
+    throw err;
+  }
+}
+
+const kmFromAu = (v: Vec3): Vec3 => [v[0] * AU_KM, v[1] * AU_KM, v[2] * AU_KM];
+const kmsFromAud = (v: Vec3): Vec3 => [v[0] * AUD_TO_KMS, v[1] * AUD_TO_KMS, v[2] * AUD_TO_KMS];
+
+function bodyList(text: string | undefined, fallback: Body[]): Body[] {
+  if (text === undefined) return fallback;
+  const list = text.split(',').map((s) => s.trim().toLowerCase()).filter(Boolean);
+  if (list.length === 0) throw usageError('--body needs a body name');
+  for (const b of list) {
+    if (!(BODIES as readonly string[]).includes(b)) throw usageError(`unknown body ${JSON.stringify(b)} (known: ${BODIES.join(', ')})`);
+  }
+  return list as Body[];
+}
+
+async function cmdEphemeris(argv: string[]): Promise<unknown> {
+  const { values, positionals } = parse(argv, { body: { type: 'string' }, at: { type: 'string' }, center: { type: 'string' } });
+  if (positionals.length) throw usageError(`unexpected argument ${JSON.stringify(positionals[0])}`);
+  if (values.body === undefined) throw usageError('missing --body');
+  const [body] = bodyList(values.body, []);
+  if (values.body.includes(',')) throw usageError('ephemeris takes one --body');
+  const center = (values.center ?? 'sun').toLowerCase();
+  if (center !== 'sun' && center !== 'earth') throw usageError(`--center must be sun or earth, got ${JSON.stringify(values.center)}`);
+  const t = epochArg('at', values.at);
+  const eph = await needModule('the ephemeris (server/engine/ephemeris)', () => import('./ephemeris'));
+  const s = eph.seriesState(body, t);
+  let pos = s.positionAu;
+  let vel = s.velocityAuD;
+  if (center === 'earth') {
+    const e = eph.seriesState('earth', t);
+    pos = [pos[0] - e.positionAu[0], pos[1] - e.positionAu[1], pos[2] - e.positionAu[2]];
+    vel = [vel[0] - e.velocityAuD[0], vel[1] - e.velocityAuD[1], vel[2] - e.velocityAuD[2]];
+  }
+  return {
+    body,
+    center,
+    frame: 'ICRF',
+    epochTdbJd: tdbJdFromDays(t),
+    positionKm: kmFromAu(pos),
+    velocityKmS: kmsFromAud(vel),
+  };
+}
+
+function utcOf(tdbDays: number): { utc: string | null; utcPredicted: boolean } {
+  try {
+    const u = utcFromTdbDays(tdbDays);
+    return { utc: u.utc, utcPredicted: u.predicted };
+  } catch (err) {
+    if (err instanceof TimeScaleError) return { utc: null, utcPredicted: false }; // before 1972: no UTC
+    throw err;
+  }
+}
+
+async function cmdPropagate(argv: string[]): Promise<unknown> {
+  const { values, positionals } = parse(argv, { to: { type: 'string' }, model: { type: 'string' } });
+  const file = positional(positionals, 'FILE (orbit solution)');
+  const model = values.model ?? 'n-body';
+  if (model !== 'n-body' && model !== 'two-body') throw usageError(`--model must be n-body or two-body, got ${JSON.stringify(model)}`);
+  const to = epochArg('to', values.to);
+  const orbit = await loadOrbitFile(file);
+  const dyn = await needModule('the dynamics (server/engine/dynamics)', () => import('./dynamics'));
+  const res = compute(() =>
+    dyn.propagate({
+      positionAu: orbit.positionAu,
+      velocityAuD: orbit.velocityAuD,
+      fromTdbDays: orbit.epochTdbDays,
+      toTdbDays: to,
+      model,
+      nonGrav: orbit.nonGrav,
+    }),
+  );
+  return {
+    object: orbit.designation,
+    model,
+    epochTdbJd: tdbJdFromDays(res.tdbDays),
+    center: 'sun',
+    frame: 'ICRF',
+    positionKm: kmFromAu(res.positionAu),
+    velocityKmS: kmsFromAud(res.velocityAuD),
+    impact: res.impact ? { body: res.impact.body, epochTdbJd: tdbJdFromDays(res.impact.tdbDays), utc: utcOf(res.impact.tdbDays).utc } : null,
+  };
+}
+
+async function cmdApproaches(argv: string[]): Promise<unknown> {
+  const { values, positionals } = parse(argv, { until: { type: 'string' }, 'max-au': { type: 'string' }, body: { type: 'string' } });
+  const file = positional(positionals, 'FILE (orbit solution)');
+  const until = epochArg('until', values.until);
+  let maxAu = 0.05;
+  if (values['max-au'] !== undefined) {
+    maxAu = Number(values['max-au']);
+    if (!(maxAu > 0 && maxAu < 10)) throw usageError(`--max-au must be a number in (0, 10), got ${JSON.stringify(values['max-au'])}`);
+  }
+  const bodies = bodyList(values.body, ['earth']);
+  const orbit = await loadOrbitFile(file);
+  const dyn = await needModule('the dynamics (server/engine/dynamics)', () => import('./dynamics'));
+  const list = compute(() =>
+    dyn.findCloseApproaches({
+      positionAu: orbit.positionAu,
+      velocityAuD: orbit.velocityAuD,
+      fromTdbDays: orbit.epochTdbDays,
+      untilTdbDays: until,
+      bodies,
+      maxAu,
+      nonGrav: orbit.nonGrav,
+    }),
+  );
+  return {
+    object: orbit.designation,
+    approaches: list.map((a) => {
+      const u = utcOf(a.tdbDays);
+      return {
+        body: a.body,
+        epochTdbJd: tdbJdFromDays(a.tdbDays),
+        utc: u.utc,
+        utcPredicted: u.utcPredicted,
+        distanceKm: a.distanceKm,
+        relativeSpeedKmS: a.relativeSpeedKmS,
+        vInfinityKmS: a.vInfinityKmS,
+        bPlane: a.bPlane ? { xiKm: a.bPlane.xiKm, zetaKm: a.bPlane.zetaKm } : null,
+        impact: a.impact,
+      };
+    }),
+  };
+}
+
+async function cmdClassify(argv: string[]): Promise<unknown> {
+  const { positionals } = parse(argv, {});
+  const file = positional(positionals, 'FILE (orbit solution)');
+  const orbit = await loadOrbitFile(file);
+  const { classifyOrbit } = await import('./classify');
+  const c = classifyOrbit({ positionAu: orbit.positionAu, velocityAuD: orbit.velocityAuD, covariance: orbit.covariance });
+  return {
+    object: orbit.designation,
+    eccentricity: c.eccentricity,
+    eccentricitySigma: c.eccentricitySigma,
+    unboundSignificance: c.unboundSignificance,
+    bound: c.bound,
+    vInfinityKmS: c.vInfinityKmS,
+    perihelionAu: c.perihelionAu,
+  };
+}
+
+/** Reserved: Engine II (impact-probability assessment). Wire server/engine/risk here when its entry point exists. */
+async function cmdAssess(): Promise<unknown> {
+  throw new CliError('NOT_AVAILABLE', 'assess is reserved for the Engine II risk assessment and is not available yet');
+}
+
+/** Reserved: orbit determination from astrometry (METHODS §9), planned later. */
+async function cmdFit(): Promise<unknown> {
+  throw new CliError('NOT_AVAILABLE', 'fit is reserved for orbit determination from astrometry and is not available yet');
+}
+
+async function cmdHelp(): Promise<unknown> {
+  return { commands: USAGE, epochForms: EPOCH_FORMS };
+}
+
+const COMMANDS: Record<string, (argv: string[]) => Promise<unknown>> = {
+  ephemeris: cmdEphemeris,
+  propagate: cmdPropagate,
+  approaches: cmdApproaches,
+  classify: cmdClassify,
+  assess: cmdAssess,
+  fit: cmdFit,
+  help: cmdHelp,
+};
+
+/** Wrap engine computation errors (ranges, integrator failures) as COMPUTATION_FAILED / OUT_OF_RANGE. */
+function compute<T>(fn: () => T): T {
+  try {
+    return fn();
+  } catch (err) {
+    if (err instanceof CliError) throw err;
+    const msg = (err as Error).message ?? String(err);
+    if (err instanceof RangeError || /outside the ephemeris span/.test(msg)) throw new CliError('OUT_OF_RANGE', msg);
+    throw new CliError('COMPUTATION_FAILED', msg);
+  }
+}
+
+export interface CliResult {
+  stdout: string;
+  stderr: string;
+  exitCode: 0 | 1 | 2;
+}
+
+/** Run the CLI on an argument vector (without node and script). Pure apart from reading files. */
+export async function runCli(argv: string[]): Promise<CliResult> {
+  try {
+    const [command, ...rest] = argv;
+    if (command === undefined) throw usageError('no command given');
+    const fn = COMMANDS[command];
+    if (!fn) throw usageError(`unknown command ${JSON.stringify(command)}`);
+    const out = await fn(rest);
+    return { stdout: `${JSON.stringify(out)}\n`, stderr: '', exitCode: 0 };
+  } catch (err) {
+    let e: CliError;
+    if (err instanceof CliError) e = err;
+    else if (err instanceof OrbitInputError) e = new CliError('INVALID_INPUT', err.message, 1, err.issues);
+    else e = new CliError('COMPUTATION_FAILED', (err as Error)?.message ?? String(err));
+    const error: Record<string, unknown> = { code: e.code, message: e.message };
+    if (e.issues) error.issues = e.issues;
+    return { stdout: '', stderr: `${JSON.stringify({ error })}\n`, exitCode: e.exitCode };
+  }
+}
+
+const isMain = process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href;
+if (isMain) {
+  runCli(process.argv.slice(2)).then((r) => {
+    if (r.stdout) process.stdout.write(r.stdout);
+    if (r.stderr) process.stderr.write(r.stderr);
+    process.exitCode = r.exitCode;
+  });
+}
