@@ -240,3 +240,50 @@ describe('account', () => {
     await context.close();
   });
 });
+
+describe('error states', () => {
+  it('shows a failed user list with the server message and recovers with "Try again"', async () => {
+    const context = await newContext(browser, server.url);
+    const page = await context.newPage();
+    const { email, password } = demoCredentials('admin');
+    await signIn(page, email, password);
+    await page.waitForURL((u) => u.pathname === '/');
+    // GET /api/users fails with the uniform error body (through the client's own retries) until
+    // the test lets requests through again.
+    let failing = true;
+    await page.route('**/api/users', async (route) => {
+      if (route.request().method() === 'GET' && failing) {
+        await route.fulfill({
+          status: 503,
+          contentType: 'application/json',
+          body: JSON.stringify({ error: { code: 'internal', message: 'The user list is unavailable right now' } }),
+        });
+      } else {
+        await route.continue();
+      }
+    });
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Users', exact: true }).click();
+    const alert = page.getByRole('alert');
+    await alert.waitFor();
+    expect(await alert.textContent()).toContain('The user list is unavailable right now');
+    await screenshot(page, 'admin-users-error');
+    failing = false;
+    await alert.getByRole('button', { name: 'Try again' }).click();
+    expect(await isVisible(row(page, 'analyst@hspdo.example'))).toBe(true);
+    expect(await page.getByRole('alert').count()).toBe(0);
+    await context.close();
+  });
+
+  it('says so when the server cannot be reached at sign-in', async () => {
+    const context = await newContext(browser, server.url);
+    const page = await context.newPage();
+    await page.goto('/sign-in');
+    await waitForHeading(page, 'Sign in to Tocsin');
+    await page.route('**/api/session', (route) => route.abort('connectionrefused'));
+    await page.getByLabel('E-mail address').fill('analyst@hspdo.example');
+    await page.getByLabel('Password', { exact: true }).fill('tocsin-analyst-demo');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    expect(await signInError(page)).toBe('Tocsin could not reach the server. Check your connection and try again.');
+    await context.close();
+  });
+});

@@ -86,7 +86,7 @@ export function UsersPage() {
           {users.isPending ? (
             <LoadingState label="Loading users…" />
           ) : users.isError ? (
-            <ErrorState error={users.error} onRetry={() => void users.refetch()} />
+            <ErrorState error={users.error} onRetry={() => void users.refetch()} title="The user list could not be loaded" />
           ) : (
             <div className="relative mt-4 overflow-x-auto rounded-lg border border-rule bg-white shadow-xs">
               {/* A table on wide screens; on narrow screens each row becomes a small stacked card. */}
