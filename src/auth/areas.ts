@@ -14,7 +14,11 @@ export type Area = {
   subject: AbilitySubject;
 };
 
-/** Navigation entries, in display order. Home is always present for a signed-in user. */
+/**
+ * Navigation entries, in display order. Home is always present for a signed-in user.
+ * Adding an area (a later issue's pages): add it here with the ability check that guards its
+ * route, and update EXPECTED_NAV and AREA_PAGES in tests/browser/roles.test.ts.
+ */
 export const AREAS: Area[] = [
   { to: '/admin/users', label: 'Users', action: 'read', subject: 'User' },
   { to: '/account', label: 'Account', action: 'read', subject: 'Account' },

@@ -106,7 +106,9 @@ describe.each(DEMO_ROLES)('role %s', (role) => {
     // Every nav link leads to its page (checked by address and main heading).
     for (const label of [...nav].reverse()) {
       await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: label, exact: true }).click();
-      const { path, heading } = AREA_PAGES[label];
+      const target = AREA_PAGES[label];
+      if (!target) throw new Error(`Navigation shows "${label}", which AREA_PAGES in this test does not know: add its path and heading`);
+      const { path, heading } = target;
       await page.waitForURL((u) => u.pathname === path);
       expect(await waitForHeading(page, heading)).toMatch(heading);
     }
