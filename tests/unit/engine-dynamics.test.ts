@@ -245,6 +245,7 @@ describe('Sun 1PN relativistic term (METHODS.md §4.2)', () => {
     const expected = ((6 * Math.PI * MU) / (C_AU_D ** 2 * a * (1 - e * e))) * (T / period) * (180 * 3600 / Math.PI);
     expect(expected).toBeCloseTo(42.98, 1);
     expect(Math.abs(dOmegaArcsec - expected)).toBeLessThan(0.3);
+    console.log(`GR perihelion advance over 100 yr: ${dOmegaArcsec.toFixed(3)}'' (formula ${expected.toFixed(3)}'')`);
   });
 });
 
