@@ -62,7 +62,10 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   // Everyone signed in: their own account, the health check, and the internal assessment record.
   can(['read', 'update'], 'Account', { id: user.id });
   can('read', 'Health');
-  can('read', ['TrackedObject', 'Solution', 'Run', 'Bulletin', 'Release']);
+  can('read', ['Run', 'Bulletin', 'Release']);
+  // Tracked objects and orbit solutions (issue 5): the analysis side of the office only; communications
+  // staff and liaisons see published summaries, never the raw solutions.
+  if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['TrackedObject', 'Solution']);
 
   switch (user.role) {
     case 'admin':

@@ -37,6 +37,15 @@ export const ROUTES = [
 
   { method: 'GET', path: '/api/invitations/:token', action: 'read', subject: 'Account', public: true, summary: 'Look up an invitation' },
   { method: 'POST', path: '/api/invitations/:token', action: 'update', subject: 'Account', public: true, summary: 'Accept an invitation by choosing a password' },
+
+  { method: 'GET', path: '/api/objects', action: 'read', subject: 'TrackedObject', summary: 'List tracked objects (paging, sorting, search, filters)' },
+  { method: 'POST', path: '/api/objects', action: 'create', subject: 'TrackedObject', summary: 'Register a tracked object' },
+  { method: 'GET', path: '/api/objects/:id', action: 'read', subject: 'TrackedObject', summary: 'One tracked object' },
+  { method: 'PATCH', path: '/api/objects/:id', action: 'update', subject: 'TrackedObject', summary: 'Change name, notes or watch status' },
+  { method: 'GET', path: '/api/objects/:id/solutions', action: 'read', subject: 'Solution', summary: 'Orbit-solution versions of an object' },
+  { method: 'POST', path: '/api/objects/:id/solutions', action: 'create', subject: 'Solution', summary: 'Add a version: multipart file (OPM or Tocsin JSON) or JSON form body' },
+  { method: 'GET', path: '/api/objects/:id/solutions/:version', action: 'read', subject: 'Solution', summary: 'One solution version with its normalised orbit and raw text' },
+  { method: 'GET', path: '/api/objects/:id/compare', action: 'read', subject: 'Solution', summary: 'Compare two versions (?a=1&b=2): elements, 1-sigma, non-grav terms, sigma ratios' },
 ] as const satisfies readonly RouteDef[];
 
 interface CompiledRoute {

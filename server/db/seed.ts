@@ -1,4 +1,5 @@
-// Demo scenario: an invented regional office and one user per role.
+// Demo scenario: an invented regional office, one user per role, and demo objects with orbit solutions
+// (server/db/demo).
 // Idempotent: rows that exist are left exactly as they are (a second run changes nothing, and a
 // demo user who changed their password keeps it).
 import path from 'node:path';
@@ -8,6 +9,7 @@ import type { Role } from '../../shared/roles';
 import { hashPassword } from '../services/passwords';
 import { OFFICE_NAME_KEY } from '../services/settings';
 import type { Db } from './client';
+import { seedDemoObjects } from './demo';
 import { settings, users } from './schema';
 
 export const DEMO_OFFICE = {
@@ -48,6 +50,7 @@ export async function seed(db: Db): Promise<{ inserted: number }> {
     const passwordHash = await hashPassword(u.password);
     inserted += db.insert(users).values({ email: u.email, name: u.name, role: u.role, passwordHash }).onConflictDoNothing().run().changes;
   }
+  inserted += seedDemoObjects(db, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
   return { inserted };
 }
 

@@ -6,9 +6,10 @@ import type { Services } from '../services';
 import { accountRouter } from './account';
 import { healthRouter } from './health';
 import { invitationsRouter } from './invitations';
+import { objectsRouter } from './objects';
 import { sessionRouter } from './session';
 import { usersRouter } from './users';
 
 export function apiRouters(services: Services, csrf: Csrf): Router[] {
-  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services)];
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services)];
 }

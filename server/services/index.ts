@@ -5,6 +5,7 @@ import type { Db } from '../db/client';
 import { createAuthService } from './auth';
 import { createInvitationService } from './invitations';
 import { createMailService } from './mail';
+import { createObjectService } from './objects';
 import { SqliteSessionStore } from './sessionStore';
 import { createUserService } from './users';
 
@@ -20,6 +21,7 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const invitations = createInvitationService(db, mail, config.publicUrl);
   const auth = createAuthService(db, sessionStore);
   const users = createUserService(db, sessionStore, invitations);
-  return { db, config, sessionStore, mail, invitations, auth, users };
+  const objects = createObjectService(db);
+  return { db, config, sessionStore, mail, invitations, auth, users, objects };
 }
 export type Services = ReturnType<typeof createServices>;
