@@ -53,9 +53,16 @@ export function detectFormat(text: string): InputFormat {
   ]);
 }
 
+/**
+ * Options of the loaders. deferCovarianceCheck: skip the positive-semi-definiteness check here, for callers that
+ * validate the covariance themselves with linalg.validateCovariance (the assess command, which names the offending
+ * eigenvalue and direction and can repair on request).
+ */
+export type LoadOptions = { deferCovarianceCheck?: boolean };
+
 /** Read either format (auto-detected) into a NormalizedOrbit. */
-export function loadOrbitSolution(text: string): NormalizedOrbit {
-  return detectFormat(text) === 'tocsin-json' ? solutionFromTocsinJson(text) : solutionFromOpm(text);
+export function loadOrbitSolution(text: string, options: LoadOptions = {}): NormalizedOrbit {
+  return detectFormat(text) === 'tocsin-json' ? solutionFromTocsinJson(text, options) : solutionFromOpm(text, options);
 }
 
 /** Smallest eigenvalue of the correlation matrix (scale-free PSD test); zero-variance rows are skipped. */
@@ -118,7 +125,7 @@ function epochOrIssue(text: string, where: string, issues: InputIssue[]): { tdbD
 // ---------------------------------------------------------------------------------------------------------
 // OPM
 
-export function solutionFromOpm(text: string): NormalizedOrbit {
+export function solutionFromOpm(text: string, options: LoadOptions = {}): NormalizedOrbit {
   const opm = parseOpm(text);
   const notes: string[] = [];
   if (opm.refFrame === 'EME2000') notes.push('REF_FRAME EME2000 taken as the ICRF axes (frame bias ~20 mas not applied)');
@@ -130,7 +137,7 @@ export function solutionFromOpm(text: string): NormalizedOrbit {
   let covariance: NormalizedOrbit['covariance'] = null;
   if (opm.covarianceKm) {
     const cxLine = text.split(/\r\n|\r|\n/).findIndex((l) => /^\s*CX_X\s*=/.test(l)) + 1;
-    const issue = checkPsd(opm.covarianceKm, `line ${cxLine}`);
+    const issue = options.deferCovarianceCheck ? null : checkPsd(opm.covarianceKm, `line ${cxLine}`);
     if (issue) throw new OrbitInputError('invalid CCSDS OPM', [issue]);
     const s = [k, k, k, KMS_TO_AUD, KMS_TO_AUD, KMS_TO_AUD];
     covariance = {
@@ -196,7 +203,7 @@ function elementsStateEq(
   return { r: eclipticToEquatorial(s.r), v: eclipticToEquatorial(s.v) };
 }
 
-export function solutionFromTocsinJson(text: string): NormalizedOrbit {
+export function solutionFromTocsinJson(text: string, options: LoadOptions = {}): NormalizedOrbit {
   let raw: unknown;
   try {
     raw = JSON.parse(text);
@@ -211,11 +218,11 @@ export function solutionFromTocsinJson(text: string): NormalizedOrbit {
       parsed.error.issues.map((i) => ({ where: fieldPath(i.path), message: i.message })),
     );
   }
-  return solutionFromTocsinObject(parsed.data, text);
+  return solutionFromTocsinObject(parsed.data, text, options);
 }
 
 /** Normalise an already-validated JSON object (rawText is hashed; pass the uploaded text). */
-export function solutionFromTocsinObject(input: OrbitSolutionInput, rawText: string): NormalizedOrbit {
+export function solutionFromTocsinObject(input: OrbitSolutionInput, rawText: string, options: LoadOptions = {}): NormalizedOrbit {
   const issues: InputIssue[] = [];
   const ep = epochOrIssue(input.epoch, 'field epoch', issues);
   let tpDays: number | undefined;
@@ -230,7 +237,7 @@ export function solutionFromTocsinObject(input: OrbitSolutionInput, rawText: str
   let velocityAuD: Vec3;
   let covariance: NormalizedOrbit['covariance'] = null;
   const cov = input.covariance;
-  if (cov) {
+  if (cov && !options.deferCovarianceCheck) {
     const issue = checkPsd(cov.matrix, 'field covariance.matrix');
     if (issue) throw new OrbitInputError('invalid Tocsin JSON orbit', [issue]);
   }
