@@ -17,7 +17,9 @@
  *           "vInfinityKmS","bPlane":{"xiKm","zetaKm"},"impact"}]}
  *   classify FILE
  *       -> {"object","eccentricity","eccentricitySigma","unboundSignificance","bound","vInfinityKmS","perihelionAu"}
- *   assess, fit: reserved (Engine II risk assessment; orbit fitting later) — currently answer NOT_AVAILABLE.
+ *   assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance]
+ *       -> the Engine II risk assessment of issue 4 item 8 (server/engine/assess/assess.ts)
+ *   fit: reserved (orbit fitting later) — currently answers NOT_AVAILABLE.
  *   help -> {"commands": {...}, "epochForms": [...]}
  *
  * FILE is a CCSDS OPM 2.0 (KVN) or a Tocsin JSON orbit solution (shared/schemas/orbit.ts).
@@ -64,7 +66,7 @@ const USAGE: Record<string, string> = {
   propagate: 'propagate FILE --to EPOCH [--model n-body|two-body]',
   approaches: 'approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,venus,mars]]',
   classify: 'classify FILE',
-  assess: 'assess FILE ... (reserved: Engine II risk assessment, not available yet)',
+  assess: 'assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance] [--max-au 0.05] [--body earth[,...]] [--progress]',
   fit: 'fit ... (reserved: orbit determination from astrometry, not available yet)',
   help: 'help',
 };
@@ -267,9 +269,93 @@ async function cmdClassify(argv: string[]): Promise<unknown> {
   };
 }
 
-/** Reserved: Engine II (impact-probability assessment). Wire server/engine/risk here when its entry point exists. */
-async function cmdAssess(): Promise<unknown> {
-  throw new CliError('NOT_AVAILABLE', 'assess is reserved for the Engine II risk assessment and is not available yet');
+/**
+ * assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all (or a comma list; default linear)]
+ *   [--analysis-date EPOCH (default: now)] [--repair-covariance] [--max-au 0.05] [--body earth[,...]] [--workers N]
+ *   [--tolerance EPS] [--progress]
+ * -> the issue 4 item 8 document (server/engine/assess/assess.ts). Progress lines go to stderr only with --progress.
+ */
+async function cmdAssess(argv: string[]): Promise<unknown> {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: argv,
+      allowPositionals: true,
+      strict: true,
+      options: {
+        until: { type: 'string' }, clones: { type: 'string' }, seed: { type: 'string' }, method: { type: 'string' },
+        'analysis-date': { type: 'string' }, 'repair-covariance': { type: 'boolean' }, 'max-au': { type: 'string' },
+        body: { type: 'string' }, workers: { type: 'string' }, tolerance: { type: 'string' }, progress: { type: 'boolean' },
+      },
+    });
+  } catch (err) {
+    throw usageError((err as Error).message.replace(/\.$/, ''));
+  }
+  const { values, positionals } = parsed;
+  const file = positional(positionals, 'FILE (orbit solution)');
+  const until = epochArg('until', values.until);
+  const intArg = (name: string, v: string | undefined, dflt: number, min: number) => {
+    if (v === undefined) return dflt;
+    const n = Number(v);
+    if (!Number.isInteger(n) || n < min) throw usageError(`--${name} must be an integer >= ${min}, got ${JSON.stringify(v)}`);
+    return n;
+  };
+  const clones = intArg('clones', values.clones, 1000, 1);
+  const seed = intArg('seed', values.seed, 1, 0);
+  const workers = values.workers === undefined ? undefined : intArg('workers', values.workers, 1, 1);
+  const known = ['linear', 'mc', 'lov'] as const;
+  const methodText = (values.method ?? 'linear').toLowerCase();
+  const methods = methodText === 'all' ? [...known] : methodText.split(',').map((m) => m.trim());
+  for (const m of methods) if (!(known as readonly string[]).includes(m)) throw usageError(`--method must be linear, mc, lov, all or a comma list, got ${JSON.stringify(values.method)}`);
+  let maxAu = 0.05;
+  if (values['max-au'] !== undefined) {
+    maxAu = Number(values['max-au']);
+    if (!(maxAu > 0 && maxAu < 10)) throw usageError(`--max-au must be a number in (0, 10), got ${JSON.stringify(values['max-au'])}`);
+  }
+  let tolerance: number | undefined;
+  if (values.tolerance !== undefined) {
+    tolerance = Number(values.tolerance);
+    if (!(tolerance > 0 && tolerance < 1e-3)) throw usageError(`--tolerance must be a number in (0, 1e-3), got ${JSON.stringify(values.tolerance)}`);
+  }
+  const analysis = values['analysis-date'] !== undefined
+    ? epochArg('analysis-date', values['analysis-date'])
+    : parseEpoch(new Date().toISOString().replace(/\.\d+Z$/, 'Z')).tdbDays;
+  const bodies = bodyList(values.body, ['earth']);
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch (err) {
+    throw new CliError('FILE_NOT_READABLE', `cannot read ${file}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
+  }
+  const { loadOrbitSolution } = await import('./input/solution');
+  let orbit: NormalizedOrbit;
+  try {
+    orbit = loadOrbitSolution(text, { deferCovarianceCheck: true });
+  } catch (err) {
+    if (err instanceof OrbitInputError) throw new CliError('INVALID_INPUT', `${file}: ${err.message}`, 1, err.issues);
+    throw err;
+  }
+  const { assess, AssessError } = await needModule('the assessment (server/engine/assess)', () => import('./assess'));
+  const progress = values.progress
+    ? (p: { stage: string; done: number; total: number; rateClonesPerS?: number; etaS?: number | null }) =>
+        process.stderr.write(`${JSON.stringify({ progress: p })}\n`)
+    : undefined;
+  try {
+    return await assess(
+      orbit,
+      { untilTdbDays: until, methods: methods as ('linear' | 'mc' | 'lov')[], clones, seed, bodies, maxAu, analysisTdbDays: analysis, workers, repairCovariance: !!values['repair-covariance'], tolerance },
+      { onProgress: progress },
+    );
+  } catch (err) {
+    if (err instanceof AssessError) {
+      if (err.code === 'NOT_AVAILABLE') throw new CliError('NOT_AVAILABLE', err.message);
+      if (err.code === 'INVALID_OPTIONS') throw usageError(err.message);
+      throw new CliError('INVALID_INPUT', `${file}: ${err.message}`, 1, [{ where: 'covariance', message: err.message }]);
+    }
+    return compute(() => {
+      throw err;
+    });
+  }
 }
 
 /** Reserved: orbit determination from astrometry (METHODS §9), planned later. */

@@ -77,12 +77,19 @@ function mcSummary(w: McWindow | null, samples: number): McSummary & { phrase: s
 
 /** Load MC's runMonteCarlo; a clear error until that module exists. */
 async function loadRunMonteCarlo(): Promise<RunMonteCarlo> {
-  const spec = './montecarlo';
-  let mod: { runMonteCarlo?: RunMonteCarlo };
-  try {
-    mod = (await import(/* @vite-ignore */ spec)) as { runMonteCarlo?: RunMonteCarlo };
-  } catch (err) {
-    throw new AssessError('NOT_AVAILABLE', `Monte Carlo is not available yet (server/engine/assess/montecarlo.ts could not be loaded: ${(err as Error).message})`);
+  // A variable specifier: the module is written in parallel (MC) and must not break type-checking while absent.
+  let mod: { runMonteCarlo?: RunMonteCarlo } | null = null;
+  let lastError: unknown = null;
+  for (const spec of ['./montecarlo', './montecarlo.ts']) {
+    try {
+      mod = (await import(/* @vite-ignore */ spec)) as { runMonteCarlo?: RunMonteCarlo };
+      break;
+    } catch (err) {
+      lastError = err;
+    }
+  }
+  if (!mod) {
+    throw new AssessError('NOT_AVAILABLE', `Monte Carlo is not available yet (server/engine/assess/montecarlo.ts could not be loaded: ${(lastError as Error).message})`);
   }
   if (typeof mod.runMonteCarlo !== 'function') throw new AssessError('NOT_AVAILABLE', 'Monte Carlo is not available yet (montecarlo.ts has no runMonteCarlo)');
   return mod.runMonteCarlo;
