@@ -1,0 +1,29 @@
+// Number and date formatting for the object pages (UTC, units beside the values).
+
+export function formatUtc(iso: string | null): string {
+  if (!iso) return '—';
+  const d = new Date(iso);
+  if (Number.isNaN(d.getTime())) return iso;
+  return d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
+}
+
+export function formatDateUtc(iso: string | null): string {
+  return iso ? formatUtc(iso).slice(0, 10) : '—';
+}
+
+/** A number with `digits` significant digits; exponent form for very small or large magnitudes. */
+export function formatNumber(x: number | null | undefined, digits = 6): string {
+  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a < 1e-3 || a >= 1e7) return x.toExponential(digits - 1).replace('e', '×10^').replace('^+', '^');
+  return Number(x.toPrecision(digits)).toString();
+}
+
+export function formatSigma(x: number | null | undefined): string {
+  return x === null || x === undefined ? '—' : `± ${formatNumber(x, 3)}`;
+}
+
+export function formatRatio(r: number | null): string {
+  return r === null ? '—' : `×${r >= 10 ? r.toFixed(0) : r.toFixed(2)}`;
+}
