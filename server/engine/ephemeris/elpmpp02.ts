@@ -140,8 +140,8 @@ export function elpMoonGeocentricKmInto(tdbDays: number, out: Float64Array | num
   const vy = dR * cB * sL - R * sB * dB * sL + R * cB * cL * dL;
   const vz = dR * sB + R * cB * dB;
   // Laskar's P, Q (ELP/MPP02 documentation; same polynomials as astronomia elp.js positionXYZ).
-  const P = T * (0.10180391e-4 + T * (0.47020439e-6 + T * (-0.5417367e-9 + T * (-0.2507948e-11 + T * 0.463486e-14))));
-  const Q = T * (-0.113469002e-3 + T * (0.12372674e-6 + T * (0.1265417e-8 + T * (-0.1371808e-11 + T * -0.320334e-14))));
+  const P = laskarP(T);
+  const Q = laskarQ(T);
   const sq = Math.sqrt(1 - P * P - Q * Q);
   const p11 = 1 - 2 * P * P;
   const p12 = 2 * P * Q;
@@ -158,4 +158,180 @@ export function elpMoonGeocentricKmInto(tdbDays: number, out: Float64Array | num
   out[3] = p11 * vx + p12 * vy + p13 * vz;
   out[4] = p21 * vx + p22 * vy + p23 * vz;
   out[5] = p31 * vx + p32 * vy + p33 * vz;
+}
+
+function laskarP(T: number): number {
+  return T * (0.10180391e-4 + T * (0.47020439e-6 + T * (-0.5417367e-9 + T * (-0.2507948e-11 + T * 0.463486e-14))));
+}
+function laskarQ(T: number): number {
+  return T * (-0.113469002e-3 + T * (0.12372674e-6 + T * (0.1265417e-8 + T * (-0.1371808e-11 + T * -0.320334e-14))));
+}
+
+/**
+ * Geocentric Moon position (km, J2000 ecliptic of the theory, as elpMoonGeocentricKmInto) from the series sums
+ * ΣL, ΣB (arcsec) and R (km) at T (Julian centuries TDB); writes out[o..o+2].
+ */
+function positionFromSumsKm(T: number, sumL: number, sumB: number, R: number, out: Float64Array, o: number): void {
+  const w = packed().W1;
+  const L = w[0] + T * (w[1] + T * (w[2] + T * (w[3] + T * w[4]))) + sumL * ARCSEC_RAD;
+  const B = sumB * ARCSEC_RAD;
+  const cB = Math.cos(B);
+  const x = R * cB * Math.cos(L);
+  const y = R * cB * Math.sin(L);
+  const z = R * Math.sin(B);
+  const P = laskarP(T);
+  const Q = laskarQ(T);
+  const sq = Math.sqrt(1 - P * P - Q * Q);
+  out[o] = (1 - 2 * P * P) * x + 2 * P * Q * y + 2 * P * sq * z;
+  out[o + 1] = 2 * P * Q * x + (1 - 2 * Q * Q) * y - 2 * Q * sq * z;
+  out[o + 2] = -2 * P * sq * x + 2 * Q * sq * y + (1 - 2 * P * P - 2 * Q * Q) * z;
+}
+
+/** All terms flattened: A, φ0..φ4 per term; segments per (variable L/B/R, power of T). */
+type FlatElp = { A: Float64Array; F: Float64Array /* 5 per term */; segStart: Int32Array; segVar: Int8Array; segPow: Int8Array };
+let FLAT: FlatElp | null = null;
+
+function flatElp(): FlatElp {
+  if (FLAT) return FLAT;
+  const p = packed();
+  const segs: { v: number; a: number; arr: Float64Array }[] = [];
+  [p.L, p.B, p.R].forEach((vv, v) => vv.forEach((arr, a) => segs.push({ v, a, arr })));
+  const total = segs.reduce((s, x) => s + x.arr.length / 6, 0);
+  const f: FlatElp = {
+    A: new Float64Array(total),
+    F: new Float64Array(total * 5),
+    segStart: new Int32Array(segs.length + 1),
+    segVar: new Int8Array(segs.length),
+    segPow: new Int8Array(segs.length),
+  };
+  let i = 0;
+  segs.forEach((sg, s) => {
+    f.segStart[s] = i;
+    f.segVar[s] = sg.v;
+    f.segPow[s] = sg.a;
+    for (let j = 0; j < sg.arr.length; j += 6, i++) {
+      f.A[i] = sg.arr[j];
+      for (let q = 0; q < 5; q++) f.F[5 * i + q] = sg.arr[j + 1 + q];
+    }
+  });
+  f.segStart[segs.length] = i;
+  FLAT = f;
+  return f;
+}
+
+/** Number of (variable, power) segments of the flattened series (scratch sizing). */
+export function elpSegmentCount(): number {
+  return flatElp().segVar.length;
+}
+
+/** Per node pattern: cos and sin of φ1·dT_k for every term (2n per term). */
+const NODE_TABLES = new Map<string, Float64Array>();
+
+/**
+ * Chunk sampler for the Chebyshev cache: geocentric Moon positions (km, J2000 ecliptic of the theory; the same
+ * values as elpMoonGeocentricKmInto up to rounding and the bound below) at times centre0 + g·stepDays + offsetsDays[k],
+ * g < K, k < n, into out[3(g·n + k) + c].
+ *
+ * Method (the phases are quartic polynomials φ(T), not linear as in VSOP87): with T0 the first granule centre,
+ * u_g = g·Δ and dT_k the node offset (centuries), w = u_g + dT_k,
+ *   φ(T0 + w) = φ(T0) + φ'(T0)·u_g + φ1·dT_k + ε,  ε = (φ'(T0) − φ1)·dT_k + φ''(T0)/2·w² + O(w³).
+ * The first three parts are exact rotations (a seed from 2 trigonometric calls per term and chunk, a granule step
+ * rotation through φ'(T0)·Δ from 2 more calls, and a per-term table of φ1·dT_k); ε enters to second order:
+ * sin(a + ε) ≈ sin a + ε·cos a − ε²/2·sin a. Bounds (ELP/MPP02 DE405 data: |φ2| ≤ 1e-3 rad/cy², |φ3| ≤ 1.5e-6,
+ * |φ4| ≤ 7.5e-9): for |T0| ≤ 3 cy, dT ≤ 1.1e-4 cy (8-day granules) and w ≤ 0.0036 cy (K = 16), |ε| ≤ 7e-7 rad,
+ * so the neglected ε³/6 is ~1e-19 of the largest amplitude (22640″ in L, 20905 km in R); the neglected cubic
+ * φ'''/6·w³ ≤ 1e-13 rad of phase: < 0.001 mm.
+ * `acc` is scratch of at least (segments ≤ 12)·K·n + 2·K·n doubles.
+ */
+export function elpChunkPositionsKmInto(
+  centre0Days: number,
+  stepDays: number,
+  K: number,
+  offsetsDays: Float64Array,
+  key: string,
+  out: Float64Array,
+  acc: Float64Array,
+): void {
+  const f = flatElp();
+  const n = offsetsDays.length;
+  const nTerms = f.A.length;
+  let node = NODE_TABLES.get(key);
+  if (!node) {
+    node = new Float64Array(nTerms * 2 * n);
+    for (let i = 0; i < nTerms; i++) {
+      const f1 = f.F[5 * i + 1];
+      for (let k = 0; k < n; k++) {
+        const x = (f1 * offsetsDays[k]) / DAYS_PER_CENTURY;
+        node[2 * n * i + k] = Math.cos(x);
+        node[2 * n * i + n + k] = Math.sin(x);
+      }
+    }
+    NODE_TABLES.set(key, node);
+  }
+  const nSeg = f.segVar.length;
+  const Kn = K * n;
+  const T0 = centre0Days / DAYS_PER_CENTURY;
+  const dG = stepDays / DAYS_PER_CENTURY;
+  // per (g, k): dT_k and w², stored after the accumulators
+  const dTo = nSeg * Kn;
+  const w2o = dTo + Kn;
+  for (let g = 0; g < K; g++) {
+    for (let k = 0; k < n; k++) {
+      const dT = offsetsDays[k] / DAYS_PER_CENTURY;
+      const w = g * dG + dT;
+      acc[dTo + g * n + k] = dT;
+      acc[w2o + g * n + k] = w * w;
+    }
+  }
+  acc.fill(0, 0, nSeg * Kn);
+  const F = f.F;
+  for (let s = 0; s < nSeg; s++) {
+    const base = s * Kn;
+    for (let i = f.segStart[s]; i < f.segStart[s + 1]; i++) {
+      const a = f.A[i];
+      const p0 = F[5 * i];
+      const p1 = F[5 * i + 1];
+      const p2 = F[5 * i + 2];
+      const p3 = F[5 * i + 3];
+      const p4 = F[5 * i + 4];
+      const ph = p0 + T0 * (p1 + T0 * (p2 + T0 * (p3 + T0 * p4)));
+      const e1 = T0 * (2 * p2 + T0 * (3 * p3 + T0 * 4 * p4)); // φ'(T0) − φ1
+      const a2 = p2 + T0 * (3 * p3 + T0 * 6 * p4); // φ''(T0)/2
+      let as = a * Math.sin(ph);
+      let ac = a * Math.cos(ph);
+      const st = (p1 + e1) * dG;
+      const cd = Math.cos(st);
+      const sd = Math.sin(st);
+      const j = 2 * n * i;
+      for (let g = 0, o = 0; g < K; g++, o += n) {
+        for (let k = 0; k < n; k++) {
+          const ck = node[j + k];
+          const sk = node[j + n + k];
+          const sinA = as * ck + ac * sk; // A·sin(φ(T0) + φ'(T0)·u_g + φ1·dT_k)
+          const cosA = ac * ck - as * sk;
+          const eps = e1 * acc[dTo + o + k] + a2 * acc[w2o + o + k];
+          acc[base + o + k] += sinA + eps * (cosA - 0.5 * eps * sinA);
+        }
+        const nc = ac * cd - as * sd;
+        as = as * cd + ac * sd;
+        ac = nc;
+      }
+    }
+  }
+  for (let g = 0; g < K; g++) {
+    for (let k = 0; k < n; k++) {
+      const T = (centre0Days + g * stepDays + offsetsDays[k]) / DAYS_PER_CENTURY;
+      let L = 0;
+      let B = 0;
+      let R = 0;
+      for (let s = 0; s < nSeg; s++) {
+        const v = acc[s * Kn + g * n + k] * Math.pow(T, f.segPow[s]);
+        const w = f.segVar[s];
+        if (w === 0) L += v;
+        else if (w === 1) B += v;
+        else R += v;
+      }
+      positionFromSumsKm(T, L, B, R, out, 3 * (g * n + k));
+    }
+  }
 }

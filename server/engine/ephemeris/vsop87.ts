@@ -219,3 +219,136 @@ export function vsop87SampleInto(planet: Vsop87Planet, tdbCenter: number, offset
     out[3 * k + 2] = R[k] * Math.sin(B[k]);
   }
 }
+
+/**
+ * Chunk sampler for the Chebyshev cache (chebyshev.ts): positions at the same n node offsets in K consecutive
+ * granules whose centres are `stepDays` apart. Same values as vsop87PositionInto at every node up to rounding:
+ * per term, cos/sin of the phase at the first granule centre are computed once, advanced from granule to granule
+ * by an exact rotation through C·Δτ (angle addition; its rounding grows by ~1e-16 per step, so K is kept small
+ * and every chunk is reseeded), and moved to each node by a second rotation through C·dτ_k taken from a
+ * per-term table. So the trigonometric cost is 2 calls per term per chunk instead of one per term and node.
+ */
+type FlatSeries = { A: Float64Array; Ph: Float64Array; C: Float64Array; segStart: Int32Array; segVar: Int8Array; segPow: Int8Array };
+const FLAT = new Map<Vsop87Planet, FlatSeries>();
+
+function flat(planet: Vsop87Planet): FlatSeries {
+  let f = FLAT.get(planet);
+  if (f) return f;
+  const p = packed(planet);
+  const segs: { v: number; a: number; arr: Float64Array }[] = [];
+  [p.L, p.B, p.R].forEach((vv, v) => vv.forEach((arr, a) => segs.push({ v, a, arr })));
+  const total = segs.reduce((s, x) => s + x.arr.length / 3, 0);
+  f = {
+    A: new Float64Array(total),
+    Ph: new Float64Array(total),
+    C: new Float64Array(total),
+    segStart: new Int32Array(segs.length + 1),
+    segVar: new Int8Array(segs.length),
+    segPow: new Int8Array(segs.length),
+  };
+  let i = 0;
+  segs.forEach((sg, s) => {
+    f!.segStart[s] = i;
+    f!.segVar[s] = sg.v;
+    f!.segPow[s] = sg.a;
+    for (let j = 0; j < sg.arr.length; j += 3, i++) {
+      f!.A[i] = sg.arr[j];
+      f!.Ph[i] = sg.arr[j + 1];
+      f!.C[i] = sg.arr[j + 2];
+    }
+  });
+  f.segStart[segs.length] = i;
+  FLAT.set(planet, f);
+  return f;
+}
+
+/** Per planet and (node pattern, granule step): node rotations (2n per term) and the granule step rotation (2 per term). */
+const CHUNK_TABLES = new Map<string, { node: Float64Array; step: Float64Array }>();
+
+/**
+ * Positions (AU, VSOP87 frame) at times centre0 + g·stepDays + offsetsDays[k] for g < K, k < n, written to
+ * out[3(g·n + k) + c]. `key` identifies (offsetsDays, stepDays); tables are cached per planet and key.
+ * `acc` is scratch of at least (number of series segments ≤ 18)·K·n doubles.
+ */
+export function vsop87ChunkPositionsInto(
+  planet: Vsop87Planet,
+  centre0Days: number,
+  stepDays: number,
+  K: number,
+  offsetsDays: Float64Array,
+  key: string,
+  out: Float64Array,
+  acc: Float64Array,
+): void {
+  const f = flat(planet);
+  const n = offsetsDays.length;
+  const nTerms = f.A.length;
+  const tk = `${planet}|${key}|${stepDays}`;
+  let tab = CHUNK_TABLES.get(tk);
+  if (!tab) {
+    const node = new Float64Array(nTerms * 2 * n);
+    const step = new Float64Array(nTerms * 2);
+    for (let i = 0; i < nTerms; i++) {
+      const c = f.C[i];
+      for (let k = 0; k < n; k++) {
+        const x = (c * offsetsDays[k]) / DAYS_PER_MILLENNIUM;
+        node[2 * n * i + k] = Math.cos(x);
+        node[2 * n * i + n + k] = Math.sin(x);
+      }
+      const d = (c * stepDays) / DAYS_PER_MILLENNIUM;
+      step[2 * i] = Math.cos(d);
+      step[2 * i + 1] = Math.sin(d);
+    }
+    tab = { node, step };
+    CHUNK_TABLES.set(tk, tab);
+  }
+  const node = tab.node;
+  const step = tab.step;
+  const tau0 = centre0Days / DAYS_PER_MILLENNIUM;
+  const nSeg = f.segVar.length;
+  const Kn = K * n;
+  acc.fill(0, 0, nSeg * Kn);
+  for (let s = 0; s < nSeg; s++) {
+    const base = s * Kn;
+    for (let i = f.segStart[s]; i < f.segStart[s + 1]; i++) {
+      const a = f.A[i];
+      const ph = f.Ph[i] + f.C[i] * tau0;
+      let ac = a * Math.cos(ph);
+      let as = a * Math.sin(ph);
+      const cd = step[2 * i];
+      const sd = step[2 * i + 1];
+      const j = 2 * n * i;
+      for (let g = 0, o = base; g < K; g++, o += n) {
+        for (let k = 0; k < n; k++) acc[o + k] += ac * node[j + k] - as * node[j + n + k];
+        const nc = ac * cd - as * sd;
+        as = as * cd + ac * sd;
+        ac = nc;
+      }
+    }
+  }
+  for (let g = 0; g < K; g++) {
+    for (let k = 0; k < n; k++) {
+      const tau = (centre0Days + g * stepDays + offsetsDays[k]) / DAYS_PER_MILLENNIUM;
+      let L = 0;
+      let B = 0;
+      let R = 0;
+      for (let s = 0; s < nSeg; s++) {
+        const v = acc[s * Kn + g * n + k] * Math.pow(tau, f.segPow[s]);
+        const w = f.segVar[s];
+        if (w === 0) L += v;
+        else if (w === 1) B += v;
+        else R += v;
+      }
+      const cB = Math.cos(B);
+      const o = 3 * (g * n + k);
+      out[o] = R * cB * Math.cos(L);
+      out[o + 1] = R * cB * Math.sin(L);
+      out[o + 2] = R * Math.sin(B);
+    }
+  }
+}
+
+/** Number of (variable, power) segments of a planet's flattened series (scratch sizing). */
+export function vsop87SegmentCount(planet: Vsop87Planet): number {
+  return flat(planet).segVar.length;
+}
