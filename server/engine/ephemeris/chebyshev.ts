@@ -248,7 +248,7 @@ export class ChebyshevEphemeris {
   }
 
   /**
-   * Builds the cache over [startTdbDays, endTdbDays] (TDB days since J2000.0). Cost: about 0.05 s of CPU per simulated
+   * Builds the cache over [startTdbDays, endTdbDays] (TDB days since J2000.0). Cost: about 0.035 s of CPU per simulated
    * year when nothing is memoized (tests/bench/ephemeris.ts), a copy when the granules are in the process-wide memo.
    * `opts.useMemo` false bypasses the memo (benchmarks).
    */
