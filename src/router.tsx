@@ -1,5 +1,5 @@
 // The route table of the client (React Router 7 data router).
-import { createBrowserRouter } from 'react-router';
+import { createBrowserRouter, Outlet } from 'react-router';
 import { RequireAbility, RequireSignIn } from './auth/guards';
 import { AppShell } from './components/AppShell';
 import { RouteError } from './components/RouteError';
@@ -8,6 +8,9 @@ import { UsersPage } from './pages/admin/UsersPage';
 import { HomePage } from './pages/home/HomePage';
 import { InvitePage } from './pages/invite/InvitePage';
 import { NotFoundPage } from './pages/NotFoundPage';
+import { ComparePage } from './pages/objects/ComparePage';
+import { ObjectPage } from './pages/objects/ObjectPage';
+import { ObjectsPage } from './pages/objects/ObjectsPage';
 import { SignInPage } from './pages/signin/SignInPage';
 
 export const router = createBrowserRouter([
@@ -22,6 +25,19 @@ export const router = createBrowserRouter([
         children: [
           { index: true, element: <HomePage /> },
           { path: 'account', element: <AccountPage /> },
+          {
+            path: 'objects',
+            element: (
+              <RequireAbility action="read" subject="TrackedObject">
+                <Outlet />
+              </RequireAbility>
+            ),
+            children: [
+              { index: true, element: <ObjectsPage /> },
+              { path: ':id', element: <ObjectPage /> },
+              { path: ':id/compare', element: <ComparePage /> },
+            ],
+          },
           {
             path: 'admin/users',
             element: (

@@ -20,6 +20,7 @@ export type Area = {
  * route, and update EXPECTED_NAV and AREA_PAGES in tests/browser/roles.test.ts.
  */
 export const AREAS: Area[] = [
+  { to: '/objects', label: 'Objects', action: 'read', subject: 'TrackedObject' },
   { to: '/admin/users', label: 'Users', action: 'read', subject: 'User' },
   { to: '/account', label: 'Account', action: 'read', subject: 'Account' },
 ];
@@ -34,6 +35,13 @@ export type Task = {
 
 /** What a user can do now; the home page lists those the ability allows. */
 export const TASKS: Task[] = [
+  {
+    to: '/objects',
+    title: 'Load an orbit solution',
+    description: 'Register an object or add a new solution version (CCSDS OPM, Tocsin JSON or a form), and compare versions.',
+    action: 'create',
+    subject: 'Solution',
+  },
   {
     to: '/admin/users#new-user',
     title: 'Invite a colleague',

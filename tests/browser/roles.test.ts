@@ -24,9 +24,9 @@ import {
 } from './harness';
 
 const EXPECTED_NAV: Record<(typeof DEMO_ROLES)[number], string[]> = {
-  admin: ['Home', 'Users', 'Account'],
-  analyst: ['Home', 'Account'],
-  reviewer: ['Home', 'Account'],
+  admin: ['Home', 'Objects', 'Users', 'Account'],
+  analyst: ['Home', 'Objects', 'Account'],
+  reviewer: ['Home', 'Objects', 'Account'],
   communications: ['Home', 'Account'],
   liaison: ['Home', 'Account'],
 };
@@ -34,6 +34,7 @@ const EXPECTED_NAV: Record<(typeof DEMO_ROLES)[number], string[]> = {
 const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
   Home: { path: '/', heading: /^Good to see you, \S+$/ },
   Users: { path: '/admin/users', heading: /^Users$/ },
+  Objects: { path: '/objects', heading: /^Objects$/ },
   Account: { path: '/account', heading: /^Your account$/ },
 };
 

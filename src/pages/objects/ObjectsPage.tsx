@@ -21,8 +21,7 @@ import { formatDateUtc, formatNumber, formatUtc } from './format';
 const PAGE_SIZES = [25, 50, 100];
 
 const columns: ColumnDef<TrackedObject>[] = [
-  {
-    id: 'designation',
+  { accessorKey: 'designation',
     header: 'Designation',
     cell: ({ row }) => (
       <Link to={`/objects/${row.original.id}`} className="font-medium" data-testid={`object-link-${row.original.designation}`}>
@@ -30,18 +29,17 @@ const columns: ColumnDef<TrackedObject>[] = [
       </Link>
     ),
   },
-  { id: 'name', header: 'Name', cell: ({ row }) => row.original.name ?? '—' },
-  { id: 'kind', header: 'Kind', cell: ({ row }) => TRACKED_OBJECT_KIND_LABELS[row.original.kind] },
-  {
-    id: 'latestSolutionAt',
+  { accessorKey: 'name', header: 'Name', cell: ({ row }) => row.original.name ?? '—' },
+  { accessorKey: 'kind', header: 'Kind', cell: ({ row }) => TRACKED_OBJECT_KIND_LABELS[row.original.kind] },
+  { accessorKey: 'latestSolutionAt',
     header: 'Latest solution',
     cell: ({ row }) => (row.original.latestSolutionVersion ? `v${row.original.latestSolutionVersion} · ${formatDateUtc(row.original.latestSolutionAt)}` : '—'),
   },
-  { id: 'nextCloseApproachAt', header: 'Next close approach', cell: ({ row }) => formatDateUtc(row.original.nextCloseApproachAt) },
-  { id: 'maxImpactProbability', header: 'Highest IP', cell: ({ row }) => formatNumber(row.original.maxImpactProbability, 2) },
-  { id: 'cumulativePalermo', header: 'Cum. Palermo', cell: ({ row }) => (row.original.cumulativePalermo === null ? '—' : row.original.cumulativePalermo.toFixed(2)) },
-  { id: 'maxTorino', header: 'Max Torino', cell: ({ row }) => row.original.maxTorino ?? '—' },
-  { id: 'lastRunAt', header: 'Last run', cell: ({ row }) => formatUtc(row.original.lastRunAt) },
+  { accessorKey: 'nextCloseApproachAt', header: 'Next close approach', cell: ({ row }) => formatDateUtc(row.original.nextCloseApproachAt) },
+  { accessorKey: 'maxImpactProbability', header: 'Highest IP', cell: ({ row }) => formatNumber(row.original.maxImpactProbability, 2) },
+  { accessorKey: 'cumulativePalermo', header: 'Cum. Palermo', cell: ({ row }) => (row.original.cumulativePalermo === null ? '—' : row.original.cumulativePalermo.toFixed(2)) },
+  { accessorKey: 'maxTorino', header: 'Max Torino', cell: ({ row }) => row.original.maxTorino ?? '—' },
+  { accessorKey: 'lastRunAt', header: 'Last run', cell: ({ row }) => formatUtc(row.original.lastRunAt) },
 ];
 
 const SORTABLE = new Set<string>(OBJECT_SORT_COLUMNS);

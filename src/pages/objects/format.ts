@@ -16,7 +16,10 @@ export function formatNumber(x: number | null | undefined, digits = 6): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return '—';
   if (x === 0) return '0';
   const a = Math.abs(x);
-  if (a < 1e-3 || a >= 1e7) return x.toExponential(digits - 1).replace('e', '×10^').replace('^+', '^');
+  if (a < 1e-3 || a >= 1e7) {
+    const [m, e] = Number(x.toPrecision(digits)).toExponential().split('e');
+    return `${m}×10${superscript(e.replace('+', ''))}`;
+  }
   return Number(x.toPrecision(digits)).toString();
 }
 
@@ -26,4 +29,9 @@ export function formatSigma(x: number | null | undefined): string {
 
 export function formatRatio(r: number | null): string {
   return r === null ? '—' : `×${r >= 10 ? r.toFixed(0) : r.toFixed(2)}`;
+}
+
+const SUPERSCRIPT: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
+function superscript(s: string): string {
+  return [...s].map((c) => SUPERSCRIPT[c] ?? c).join('');
 }
