@@ -100,8 +100,19 @@ function toSolutionSummary({ s, createdByName }: SolutionJoinRow): SolutionSumma
   };
 }
 
+const NON_GRAV_LABELS = { a1: 'A1 (radial)', a2: 'A2 (transverse)', a3: 'A3 (normal)' } as const;
+
 function toSolution(row: SolutionJoinRow): Solution {
-  return { ...toSolutionSummary(row), orbit: JSON.parse(row.s.orbitJson) as NormalizedOrbit, rawText: row.s.rawText };
+  const orbit = JSON.parse(row.s.orbitJson) as NormalizedOrbit;
+  const el = elementsWithSigma(orbit);
+  const ng = nonGravWithSigma(orbit);
+  return {
+    ...toSolutionSummary(row),
+    orbit,
+    rawText: row.s.rawText,
+    elements: ELEMENT_KEYS.map((key) => ({ key, label: ELEMENT_INFO[key].label, unit: ELEMENT_INFO[key].unit, ...el[key] })),
+    nonGrav: (['a1', 'a2', 'a3'] as const).map((key) => ({ key, label: NON_GRAV_LABELS[key], unit: 'AU/d²', ...ng[key] })),
+  };
 }
 
 /** Designations compare without case and with runs of spaces collapsed ("hs 2026 qa" = "HS  2026 QA"). */
@@ -355,7 +366,7 @@ export function createObjectService(db: Db) {
       const nb = nonGravWithSigma(ob);
       const nonGrav: CompareRow[] = (['a1', 'a2', 'a3'] as const).map((key) => ({
         key,
-        label: `${key.toUpperCase()} (${key === 'a1' ? 'radial' : key === 'a2' ? 'transverse' : 'normal'})`,
+        label: NON_GRAV_LABELS[key],
         unit: 'AU/d²',
         a: na[key],
         b: nb[key],

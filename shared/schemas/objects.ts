@@ -179,9 +179,22 @@ export const solutionSummarySchema = z.object({
 });
 export type SolutionSummary = z.infer<typeof solutionSummarySchema>;
 
+/** One quantity of a solution with its 1-sigma (null when the solution has no covariance for it). */
+export const quantityRowSchema = z.object({
+  key: z.string(),
+  label: z.string(),
+  unit: z.string(),
+  value: z.number().nullable(),
+  sigma: z.number().nullable(),
+});
+export type QuantityRow = z.infer<typeof quantityRowSchema>;
+
 export const solutionSchema = solutionSummarySchema.extend({
   orbit: normalizedOrbitSchema,
   rawText: z.string(),
+  /** Osculating heliocentric elements (J2000 ecliptic) at the epoch with 1-sigma (method as in the comparison). */
+  elements: z.array(quantityRowSchema),
+  nonGrav: z.array(quantityRowSchema),
 });
 export type Solution = z.infer<typeof solutionSchema>;
 

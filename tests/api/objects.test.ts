@@ -161,6 +161,11 @@ describe('solution uploads', () => {
     const s1 = solutionSchema.parse(r1.body);
     expect(s1).toMatchObject({ version: 1, sourceKind: 'opm', fileName: 'zz-up-1.opm', observationArcDays: 9.5, observationCount: 40, fitRmsArcsec: 0.5, forceModel: 'gravity-only' });
     expect(s1.rawText).toBe(opm);
+    // the version carries its elements with 1-sigma (same e as the classification; σ from the OPM covariance)
+    const e = s1.elements.find((r) => r.key === 'e')!;
+    expect(e.value).toBeCloseTo(s1.classification.eccentricity, 12);
+    expect(e.sigma).toBe(s1.classification.eccentricitySigma);
+    expect(s1.nonGrav.every((r) => r.value === null && r.sigma === null)).toBe(true);
     expect(s1.inputSha256).toBe(crypto.createHash('sha256').update(opm, 'utf8').digest('hex'));
     expect(s1.epochUtc).toMatch(/^2026-11-19T23:58:5\d/); // 2026-11-20T00:00:00 TDB is ~69.2 s ahead of UTC
 

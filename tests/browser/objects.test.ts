@@ -50,6 +50,11 @@ describe('objects as an analyst', () => {
     await page.getByTestId('object-link-HSO-26-U1').click();
     expect(await waitForHeading(page, 'HSO-26-U1 (Vaskir)')).toBe('HSO-26-U1 (Vaskir)');
     await page.getByTestId('version-row-2').waitFor();
+    // one version in detail: elements with 1-sigma and the raw input with line numbers
+    await page.getByRole('button', { name: 'Show version 2' }).click();
+    const detail = page.getByTestId('solution-detail-2');
+    await detail.getByText('A1 (radial)').waitFor();
+    expect(await detail.getByText('Input as received (JSON)').count()).toBe(1);
     await page.getByLabel('Compare version 1').check();
     await page.getByLabel('Compare version 2').check();
     await page.getByRole('button', { name: 'Compare the two ticked versions' }).click();

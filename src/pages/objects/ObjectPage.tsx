@@ -7,6 +7,7 @@ import { useObject, useSolutions, useUpdateObject } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
 import { formatNumber, formatUtc } from './format';
+import { SolutionDetail } from './SolutionDetail';
 import { UploadSolutionForm } from './UploadSolutionForm';
 
 function NotesEditor({ id, notes }: { id: number; notes: string }) {
@@ -24,7 +25,7 @@ function NotesEditor({ id, notes }: { id: number; notes: string }) {
   );
 }
 
-function VersionsTable({ objectId, solutions }: { objectId: number; solutions: SolutionSummary[] }) {
+function VersionsTable({ objectId, solutions, onShow }: { objectId: number; solutions: SolutionSummary[]; onShow: (version: number) => void }) {
   const navigate = useNavigate();
   const [picked, setPicked] = useState<number[]>([]);
   const toggle = (v: number) => setPicked((p) => (p.includes(v) ? p.filter((x) => x !== v) : [...p, v].slice(-2)));
@@ -61,7 +62,11 @@ function VersionsTable({ objectId, solutions }: { objectId: number; solutions: S
                   <td className="px-3 py-2">
                     <input type="checkbox" aria-label={`Compare version ${s.version}`} checked={picked.includes(s.version)} onChange={() => toggle(s.version)} />
                   </td>
-                  <td className="px-3 py-2 font-semibold">v{s.version}</td>
+                  <td className="px-3 py-2 font-semibold">
+                    <button type="button" className="text-accent-700 underline" onClick={() => onShow(s.version)} aria-label={`Show version ${s.version}`}>
+                      v{s.version}
+                    </button>
+                  </td>
                   <td className="px-3 py-2">{s.sourceKind.toUpperCase()}{s.fileName ? ` · ${s.fileName}` : ''}</td>
                   <td className="px-3 py-2">{formatUtc(s.epochUtc)}</td>
                   <td className="px-3 py-2">
@@ -90,6 +95,7 @@ export function ObjectPage() {
   const solutions = useSolutions(id);
   const update = useUpdateObject(id);
   const [added, setAdded] = useState<number | null>(null);
+  const [shown, setShown] = useState<number | null>(null);
   if (object.isPending) return <LoadingState label="Loading the object…" />;
   if (object.isError) return <ErrorState error={object.error} onRetry={() => object.refetch()} />;
   const o = object.data;
@@ -119,8 +125,9 @@ export function ObjectPage() {
         ) : solutions.isError ? (
           <ErrorState error={solutions.error} onRetry={() => solutions.refetch()} />
         ) : (
-          <VersionsTable objectId={id} solutions={solutions.data} />
+          <VersionsTable objectId={id} solutions={solutions.data} onShow={setShown} />
         )}
+        {shown !== null && <SolutionDetail key={shown} objectId={id} version={shown} onClose={() => setShown(null)} />}
         {ability.can('create', 'Solution') && <UploadSolutionForm objectId={id} onDone={setAdded} />}
       </div>
     </div>
