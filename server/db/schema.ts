@@ -5,6 +5,7 @@ import { sql } from 'drizzle-orm';
 import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { ROLES } from '../../shared/roles';
 import { FORCE_MODELS, SOLUTION_SOURCE_KINDS, TRACKED_OBJECT_KINDS } from '../../shared/schemas/objects';
+import { RUN_STATUSES } from '../../shared/schemas/runs';
 
 const nowMs = sql`(cast(unixepoch('subsecond') * 1000 as integer))`;
 
@@ -156,9 +157,55 @@ export const orbitSolutions = sqliteTable(
   (t) => [uniqueIndex('orbit_solutions_object_version_idx').on(t.objectId, t.version)],
 );
 
+/**
+ * Assessment runs: durable engine jobs (server/services/runs). A run is inserted 'queued'; a runner claims it
+ * atomically (status 'running' with its lease owner and expiry, attempts + 1), heartbeats the lease while the
+ * engine works, and finishes it 'done' (result JSON), 'failed' (error) or 'cancelled'. A 'running' run whose lease
+ * expired (its process died) is put back to 'queued' and claimed again, so none is lost or run twice at a time.
+ * `optionsJson` is RunOptions, `provenanceJson` RunProvenance (shared/schemas/runs.ts), `resultJson` the engine's
+ * assess JSON. Progress: `progressDone` of `progressTotal` in `progressStage`, rate in clones/s, ETA in seconds.
+ */
+export const assessmentRuns = sqliteTable(
+  'assessment_runs',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    solutionId: integer('solution_id')
+      .notNull()
+      .references(() => orbitSolutions.id, { onDelete: 'restrict' }),
+    solutionVersion: integer('solution_version').notNull(),
+    inputSha256: text('input_sha256').notNull(),
+    optionsJson: text('options_json').notNull(),
+    status: text('status', { enum: RUN_STATUSES }).notNull().default('queued'),
+    progressStage: text('progress_stage'),
+    progressDone: real('progress_done').notNull().default(0),
+    progressTotal: real('progress_total').notNull().default(0),
+    rateClonesPerS: real('rate_clones_per_s'),
+    etaS: real('eta_s'),
+    error: text('error'),
+    attempts: integer('attempts').notNull().default(0),
+    leaseOwner: text('lease_owner'),
+    leaseExpiresAt: integer('lease_expires_at', { mode: 'timestamp_ms' }),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
+    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+    provenanceJson: text('provenance_json'),
+    resultJson: text('result_json'),
+  },
+  (t) => [
+    index('assessment_runs_status_idx').on(t.status, t.id),
+    index('assessment_runs_object_idx').on(t.objectId, t.id),
+    index('assessment_runs_solution_idx').on(t.solutionId),
+  ],
+);
+
 export type UserRow = typeof users.$inferSelect;
 export type NewUserRow = typeof users.$inferInsert;
 export type InvitationRow = typeof invitations.$inferSelect;
 export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 export type TrackedObjectRow = typeof trackedObjects.$inferSelect;
 export type OrbitSolutionRow = typeof orbitSolutions.$inferSelect;
+export type AssessmentRunRow = typeof assessmentRuns.$inferSelect;
