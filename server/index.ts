@@ -11,6 +11,7 @@ import { closeDb, openDb } from './db/client';
 import { runMigrations } from './db/migrate';
 import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
+import { createRunner } from './services/runs/runner';
 import { ROLE_LABELS } from '../shared/roles';
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
@@ -52,6 +53,10 @@ async function main(): Promise<void> {
   for (const t of timers) t.unref();
   void services.mail.deliverPending();
 
+  // Assessment runs: resumes runs a previous process left behind, then works the queue (server/services/runs).
+  const runner = createRunner(db, services.runs);
+  runner.start();
+
   const width = Math.max(...DEMO_USERS.map((u) => u.email.length));
   console.log('');
   console.log(`Tocsin is running at ${config.publicUrl}   (${DEMO_OFFICE.name}, demo data)`);
@@ -69,6 +74,8 @@ async function main(): Promise<void> {
     stopping = true;
     console.log(`${signal}: shutting down`);
     for (const t of timers) clearInterval(t);
+    // Running engine work is stopped and its runs go back to the queue; the next start resumes them.
+    await runner.stop();
     server.closeAllConnections();
     await new Promise<void>((resolve) => server.close(() => resolve()));
     transport.close();

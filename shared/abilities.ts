@@ -59,28 +59,33 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   const { can, build } = new AbilityBuilder<AppAbility>(createMongoAbility);
   if (!user) return build();
 
-  // Everyone signed in: their own account, the health check, and the internal assessment record.
+  // Everyone signed in: their own account, the health check, bulletins and releases.
   can(['read', 'update'], 'Account', { id: user.id });
   can('read', 'Health');
-  can('read', ['Run', 'Bulletin', 'Release']);
-  // Tracked objects and orbit solutions (issue 5): the analysis side of the office only; communications
-  // staff and liaisons see published summaries, never the raw solutions.
-  if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['TrackedObject', 'Solution']);
+  can('read', ['Bulletin', 'Release']);
+  // Tracked objects, orbit solutions and assessment runs (issue 5): the analysis side of the office only;
+  // communications staff and liaisons see published summaries, never the raw solutions or runs.
+  if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['TrackedObject', 'Solution', 'Run']);
 
   switch (user.role) {
     case 'admin':
       can('manage', 'User');
       can('manage', ['StakeholderList', 'Observatory']);
+      // Operations: may cancel a stuck or runaway run (DELETE /api/runs/:id), never start one.
+      can('delete', 'Run');
       break;
     case 'analyst':
       can(['create', 'update'], ['TrackedObject', 'Solution']);
-      can(['create', 'run'], 'Run');
+      // Runs: start them, and cancel any run of the office (not only their own: the queue is shared and one
+      // analyst must be able to stop a colleague's mistaken run).
+      can(['create', 'run', 'delete'], 'Run');
       can(['create', 'update'], 'Bulletin');
       can('read', 'Observatory');
       break;
     case 'reviewer':
       can(['review', 'approve'], 'Bulletin');
-      can('review', 'Run');
+      // Reviewers re-run an assessment to check it, but do not cancel other people's runs.
+      can(['create', 'review'], 'Run');
       can('read', 'Observatory');
       break;
     case 'communications':

@@ -46,6 +46,11 @@ export const ROUTES = [
   { method: 'POST', path: '/api/objects/:id/solutions', action: 'create', subject: 'Solution', summary: 'Add a version: multipart file (OPM or Tocsin JSON) or JSON form body' },
   { method: 'GET', path: '/api/objects/:id/solutions/:version', action: 'read', subject: 'Solution', summary: 'One solution version with its normalised orbit and raw text' },
   { method: 'GET', path: '/api/objects/:id/compare', action: 'read', subject: 'Solution', summary: 'Compare two versions (?a=1&b=2): elements, 1-sigma, non-grav terms, sigma ratios' },
+
+  { method: 'GET', path: '/api/runs', action: 'read', subject: 'Run', summary: 'Assessment runs, newest first (?objectId=&solutionId=&status=&limit=)' },
+  { method: 'POST', path: '/api/runs', action: 'create', subject: 'Run', summary: 'Queue an assessment run of a solution version (202 with the run)' },
+  { method: 'GET', path: '/api/runs/:id', action: 'read', subject: 'Run', summary: 'One run: status, progress, provenance, and the engine result when done' },
+  { method: 'DELETE', path: '/api/runs/:id', action: 'delete', subject: 'Run', summary: 'Cancel a queued or running run' },
 ] as const satisfies readonly RouteDef[];
 
 interface CompiledRoute {

@@ -7,9 +7,10 @@ import { accountRouter } from './account';
 import { healthRouter } from './health';
 import { invitationsRouter } from './invitations';
 import { objectsRouter } from './objects';
+import { runsRouter } from './runs';
 import { sessionRouter } from './session';
 import { usersRouter } from './users';
 
 export function apiRouters(services: Services, csrf: Csrf): Router[] {
-  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services)];
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services)];
 }

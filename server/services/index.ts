@@ -6,6 +6,7 @@ import { createAuthService } from './auth';
 import { createInvitationService } from './invitations';
 import { createMailService } from './mail';
 import { createObjectService } from './objects';
+import { createRunService } from './runs/service';
 import { SqliteSessionStore } from './sessionStore';
 import { createUserService } from './users';
 
@@ -22,6 +23,7 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const auth = createAuthService(db, sessionStore);
   const users = createUserService(db, sessionStore, invitations);
   const objects = createObjectService(db);
-  return { db, config, sessionStore, mail, invitations, auth, users, objects };
+  const runs = createRunService(db);
+  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs };
 }
 export type Services = ReturnType<typeof createServices>;

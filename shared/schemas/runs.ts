@@ -119,8 +119,9 @@ export const runProvenanceSchema = z
     solutionVersion: z.number().int(),
     inputSha256: z.string(),
     methods: z.array(runMethodSchema),
-    clones: z.number().int(),
-    seed: z.number().int(),
+    /** Monte Carlo sample size and seed actually used; null when no Monte Carlo ran (the engine's convention). */
+    clones: z.number().int().nullable(),
+    seed: z.number().int().nullable(),
     engineVersion: z.string().optional(),
     ephemeris: z.string().optional(),
     integrator: z.string().optional(),

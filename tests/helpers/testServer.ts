@@ -21,6 +21,7 @@ import { closeDb, openDb, type Db } from '../../server/db/client';
 import { runMigrations } from '../../server/db/migrate';
 import { DEMO_USERS, seed as seedDemo } from '../../server/db/seed';
 import type { Services } from '../../server/services';
+import { createRunner, type Runner, type RunnerOptions } from '../../server/services/runs/runner';
 
 export { DEMO_USERS };
 
@@ -40,6 +41,8 @@ export interface TestServer {
   databaseFile: string;
   config: Config;
   services: Services;
+  /** The assessment-run runner, when started with the `runner` option. */
+  runner: Runner | undefined;
   mail: {
     /** Every message received so far, oldest first. */
     messages(): Promise<TestMail[]>;
@@ -57,6 +60,13 @@ export interface TestServerOptions {
   config?: Partial<Config>;
   /** Serve the built client from this folder (default dist/client when it exists). */
   clientDir?: string;
+  /** Start the assessment-run runner (true, or its options); close() stops it (releasing its runs). */
+  runner?: boolean | RunnerOptions;
+  /**
+   * Use this SQLite file instead of a fresh temporary one (e.g. a second server on the database of a first, to
+   * test a restart). close() then leaves the file in place.
+   */
+  databaseFile?: string;
 }
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
@@ -98,8 +108,8 @@ export async function startSmtpFake(): Promise<{ port: number; messages(): Promi
 }
 
 export async function startTestServer(opts: TestServerOptions = {}): Promise<TestServer> {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tocsin-test-'));
-  const databaseFile = path.join(dir, 'tocsin.sqlite');
+  const dir = opts.databaseFile ? undefined : fs.mkdtempSync(path.join(os.tmpdir(), 'tocsin-test-'));
+  const databaseFile = opts.databaseFile ?? path.join(dir!, 'tocsin.sqlite');
   const db = openDb(databaseFile);
   runMigrations(db);
   if (opts.seed !== false) await seedDemo(db);
@@ -121,6 +131,8 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
   const clientDir = opts.clientDir ?? path.join(ROOT, 'dist/client');
   const { app, services } = buildApp({ db, config, mailTransport, clientDir, logError: (err) => console.error('[test server]', err) });
   server.on('request', app);
+  const runner = opts.runner ? createRunner(db, services.runs, { log: () => undefined, ...(opts.runner === true ? {} : opts.runner) }) : undefined;
+  runner?.start();
 
   const messages = smtp.messages;
   return {
@@ -129,6 +141,7 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
     databaseFile,
     config,
     services,
+    runner,
     mail: {
       messages,
       clear: smtp.clear,
@@ -143,12 +156,13 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
       },
     },
     async close() {
+      await runner?.stop();
       server.closeAllConnections();
       await new Promise<void>((resolve) => server.close(() => resolve()));
       mailTransport.close();
       await smtp.close();
       closeDb(db);
-      fs.rmSync(dir, { recursive: true, force: true });
+      if (dir) fs.rmSync(dir, { recursive: true, force: true });
     },
   };
 }
