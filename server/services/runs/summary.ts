@@ -1,7 +1,7 @@
 // The object-list summary columns from one finished run's assess JSON (pure; no database).
 //  - nextCloseApproachAt: the earliest nominal close approach at or after the analysis date (any monitored body);
-//  - maxImpactProbability: the largest rating probability over the approaches and the other (MC/LOV) windows,
-//    each taken from the method the engine used for its ratings ("ratingProbabilitySource");
+//  - maxImpactProbability: the largest rating probability over the approaches and the other (MC/LOV) windows not
+//    before the analysis date, each taken from the method the engine used for its ratings ("ratingProbabilitySource");
 //  - cumulativePalermo, maxTorino: the engine's own figures.
 type Ip = { linear?: number | null; monteCarlo?: { estimate?: number | null } | null; lov?: number | null } | null | undefined;
 type Rated = { utc?: string; impactProbability?: Ip; ratingProbabilitySource?: string | null };
@@ -38,6 +38,8 @@ export function objectRiskSummary(result: Record<string, unknown>): ObjectRiskSu
   }
   let maxIp: number | null = null;
   for (const a of [...approaches, ...others]) {
+    const t = typeof a.utc === 'string' ? Date.parse(a.utc) : Number.NaN;
+    if (Number.isFinite(t) && Number.isFinite(analysisMs) && t < analysisMs) continue; // already past
     const p = ratingProbability(a);
     if (p !== null && (maxIp === null || p > maxIp)) maxIp = p;
   }
