@@ -11,6 +11,7 @@ import { NotFoundPage } from './pages/NotFoundPage';
 import { ComparePage } from './pages/objects/ComparePage';
 import { ObjectPage } from './pages/objects/ObjectPage';
 import { ObjectsPage } from './pages/objects/ObjectsPage';
+import { RunPage } from './pages/runs/RunPage';
 import { SignInPage } from './pages/signin/SignInPage';
 
 export const router = createBrowserRouter([
@@ -37,6 +38,14 @@ export const router = createBrowserRouter([
               { path: ':id', element: <ObjectPage /> },
               { path: ':id/compare', element: <ComparePage /> },
             ],
+          },
+          {
+            path: 'runs/:id',
+            element: (
+              <RequireAbility action="read" subject="Run">
+                <RunPage />
+              </RequireAbility>
+            ),
           },
           {
             path: 'admin/users',

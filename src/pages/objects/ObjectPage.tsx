@@ -9,6 +9,7 @@ import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessag
 import { formatNumber, formatUtc } from './format';
 import { SolutionDetail } from './SolutionDetail';
 import { UploadSolutionForm } from './UploadSolutionForm';
+import { ObjectRuns } from '../runs/ObjectRuns';
 
 function NotesEditor({ id, notes }: { id: number; notes: string }) {
   const update = useUpdateObject(id);
@@ -128,6 +129,7 @@ export function ObjectPage() {
           <VersionsTable objectId={id} solutions={solutions.data} onShow={setShown} />
         )}
         {shown !== null && <SolutionDetail key={shown} objectId={id} version={shown} onClose={() => setShown(null)} />}
+        {solutions.data && <ObjectRuns objectId={id} solutions={solutions.data} />}
         {ability.can('create', 'Solution') && <UploadSolutionForm objectId={id} onDone={setAdded} />}
       </div>
     </div>

@@ -1,0 +1,85 @@
+// An analyst queues an assessment run from the object page and watches it through the real UI: the run page
+// polls its status (queued/running with a progress bar) until it is done, then shows the encounter table; the
+// run is listed on the object page.
+// Sources: the agreed contract (issue 5 items 3 and 4); the demo asteroid's designed encounter
+// (server/db/demo/make-nea.ts: about 26 000 km from Earth on 2034-09-17).
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { startTestServer } from '../helpers/testServer';
+import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+
+let server: Awaited<ReturnType<typeof startTestServer>>;
+let browser: Browser;
+
+beforeAll(async () => {
+  await ensureClientBuilt();
+  server = await startTestServer({ runner: { pollMs: 200 } });
+  browser = await launchBrowser();
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+});
+
+describe('assessment runs in the browser', () => {
+  it('an analyst queues a run, watches its progress and reads the encounter table', async () => {
+    const context = await newContext(browser, server.url);
+    const page = await context.newPage();
+    const errors = watchPageErrors(page, [401, 422]);
+    const { email, password } = demoCredentials('analyst');
+    await signIn(page, email, password);
+    await page.waitForURL((u) => u.pathname === '/');
+
+    const objects = await (await page.request.get(`${server.url}/api/objects?q=HSO-26-N4`)).json();
+    const objectId = objects.items[0].id as number;
+    await page.goto(`/objects/${objectId}`);
+    expect(await waitForHeading(page, 'HSO-26-N4')).toBe('HSO-26-N4');
+    await page.getByRole('heading', { name: 'Start an assessment run' }).waitFor();
+    expect(await page.getByText('No run yet.').count()).toBe(1);
+
+    // a refused window is shown at its field, nothing is queued
+    await page.getByLabel('Window end').fill('2026-01-01T00:00:00Z');
+    await page.getByRole('button', { name: 'Queue the run' }).click();
+    await page.getByText(/must end after the solution epoch/).waitFor();
+
+    await page.getByLabel('Window end').fill('2035-01-01T00:00:00Z');
+    await page.getByLabel('Line of variations').check();
+    await page.getByRole('button', { name: 'Queue the run' }).click();
+    await page.waitForURL(/\/runs\/\d+$/);
+    expect(await waitForHeading(page, /^Run #\d+: HSO-26-N4 v1$/)).toMatch(/^Run #\d+: HSO-26-N4 v1$/);
+
+    // the page polls: the status badge moves on without a reload, through 'Running' with a progress bar
+    const status = page.getByTestId('run-status').first();
+    const seen = new Set<string>();
+    const deadline = Date.now() + 60_000;
+    for (;;) {
+      const s = ((await status.textContent()) ?? '').trim();
+      seen.add(s);
+      if (s === 'Running' && (await page.getByRole('progressbar').count()) === 1) seen.add('progressbar');
+      if (s === 'Done' || s === 'Failed' || Date.now() > deadline) break;
+      await page.waitForTimeout(100);
+    }
+    expect([...seen]).toContain('Running');
+    expect([...seen]).toContain('progressbar');
+    expect(((await status.textContent()) ?? '').trim()).toBe('Done');
+
+    const table = page.getByTestId('encounter-table');
+    await table.waitFor();
+    const rowText = (await table.locator('tbody tr').allTextContents()).join('\n');
+    expect(rowText).toContain('2034-09-17');
+    // designed miss distance about 26 000 km, i.e. 0.0676 lunar distances (26 000 / 384 400)
+    expect(rowText).toMatch(/26000 km|25999\.\d* km|2\.6\d*×10⁴ km/);
+    expect(rowText).toContain('LOV');
+    expect(await page.getByText('Input SHA-256').count()).toBe(1);
+    await screenshot(page, 'analyst-run-done');
+
+    // back on the object page: the run is listed as done
+    await page.getByRole('link', { name: '← HSO-26-N4' }).click();
+    const row = page.locator('[data-testid^="run-row-"]').first();
+    await row.waitFor();
+    expect(await row.textContent()).toContain('Done');
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
