@@ -81,7 +81,7 @@ describe('runs on one server', () => {
   let nea: Awaited<ReturnType<typeof demoSolution>>;
 
   beforeAll(async () => {
-    srv = await startTestServer({ runner: { leaseMs: 3000, pollMs: 200 } });
+    srv = await startTestServer({ runner: { leaseMs: 3000, pollMs: 200, progressWriteMs: 100 } });
     as = await signedIn(srv.url);
     nea = await demoSolution(as.analyst, NEA);
   });
@@ -158,6 +158,8 @@ describe('runs on one server', () => {
     // progress only moves forward while the stage stays the same
     const dones = mid.map((r) => r.progress.done);
     expect([...dones].sort((a, b) => a - b)).toEqual(dones);
+    // the engine gives no ETA for LOV: the runner estimates one from the pace so far
+    expect(mid.some((r) => r.progress.etaS !== null && r.progress.etaS > 0)).toBe(true);
     expect((last.result as any).provenance.methods).toEqual(['linear', 'lov']);
   });
 
@@ -300,7 +302,7 @@ describe('runs across a restart', () => {
 
   it('picks up a run whose process died mid-run once its lease expires, and a cleanly stopped one at once; each finishes exactly once', async () => {
     const { executor, stats } = countingExecutor();
-    const runnerOpts = { leaseMs: 900, pollMs: 100, executor };
+    const runnerOpts = { leaseMs: 900, pollMs: 100, progressWriteMs: 100, executor };
 
     // 1. A server starts a run and dies in the middle of it (no clean-up: the row stays 'running' with its lease).
     const s1 = await startTestServer({ databaseFile, runner: runnerOpts });

@@ -186,6 +186,15 @@ export function createRunner(db: Db, runs: RunService, opts: RunnerOptions = {})
 
     let lastWrite = 0;
     let pending: ExecutorProgress | null = null;
+    // ETA where the engine gives none (linear, LOV): time so far in the stage over the fraction done.
+    let stage: { name: string; startedMs: number } | null = null;
+    const withEta = (p: ExecutorProgress): ExecutorProgress => {
+      const now = Date.now();
+      if (!stage || stage.name !== p.stage) stage = { name: p.stage, startedMs: now };
+      if (p.etaS !== null || p.done <= 0 || p.total <= p.done) return p;
+      const elapsedS = (now - stage.startedMs) / 1000;
+      return { ...p, etaS: (elapsedS / p.done) * (p.total - p.done) };
+    };
     const writeProgress = (p: ExecutorProgress) => {
       db.update(assessmentRuns)
         .set({ progressStage: p.stage, progressDone: p.done, progressTotal: p.total, rateClonesPerS: p.rateClonesPerS, etaS: p.etaS })
@@ -194,7 +203,8 @@ export function createRunner(db: Db, runs: RunService, opts: RunnerOptions = {})
       lastWrite = Date.now();
       pending = null;
     };
-    const onProgress = (p: ExecutorProgress) => {
+    const onProgress = (raw: ExecutorProgress) => {
+      const p = withEta(raw);
       if (Date.now() - lastWrite >= progressWriteMs || p.done >= p.total) writeProgress(p);
       else pending = p;
     };
