@@ -109,7 +109,14 @@ export function createRunner(db: Db, runs: RunService, opts: RunnerOptions = {})
       .filter((r) => (r.leaseExpiresAt === null || r.leaseExpiresAt.getTime() < now.getTime()) || (includeDeadOwners && r.leaseOwner !== null && ownerProcessIsGone(r.leaseOwner)));
     let n = 0;
     for (const r of stale) {
-      const guard = and(eq(assessmentRuns.id, r.id), eq(assessmentRuns.status, 'running'), r.leaseOwner === null ? sql`lease_owner is null` : eq(assessmentRuns.leaseOwner, r.leaseOwner));
+      // The condition is repeated in the UPDATE: another process may have renewed its lease since the SELECT.
+      const expired = r.leaseExpiresAt === null || r.leaseExpiresAt.getTime() < now.getTime();
+      const guard = and(
+        eq(assessmentRuns.id, r.id),
+        eq(assessmentRuns.status, 'running'),
+        r.leaseOwner === null ? sql`${assessmentRuns.leaseOwner} is null` : eq(assessmentRuns.leaseOwner, r.leaseOwner),
+        expired ? sql`(${assessmentRuns.leaseExpiresAt} is null or ${assessmentRuns.leaseExpiresAt} < ${now.getTime()})` : undefined,
+      );
       const failed = r.attempts >= maxAttempts;
       const changed = db
         .update(assessmentRuns)
