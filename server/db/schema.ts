@@ -2,10 +2,12 @@
 // file with `npm run db:generate` (drizzle-kit) and never edited by hand.
 // Times are stored as integer milliseconds since the Unix epoch (UTC); names end in `At`.
 import { sql } from 'drizzle-orm';
-import { index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
+import { blob, index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core';
+import { BULLETIN_STATES, VERSION_STATUSES } from '../../shared/bulletins/workflow';
 import { ROLES } from '../../shared/roles';
 import { FORCE_MODELS, SOLUTION_SOURCE_KINDS, TRACKED_OBJECT_KINDS } from '../../shared/schemas/objects';
 import { RUN_STATUSES } from '../../shared/schemas/runs';
+import { STAKEHOLDER_KINDS } from '../../shared/schemas/bulletins';
 
 const nowMs = sql`(cast(unixepoch('subsecond') * 1000 as integer))`;
 
@@ -73,8 +75,27 @@ export const mailOutbox = sqliteTable(
     lastError: text('last_error'),
     createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
     sentAt: integer('sent_at', { mode: 'timestamp_ms' }),
+    /** Earliest time of the next attempt (backoff after a failure); null = now. */
+    nextAttemptAt: integer('next_attempt_at', { mode: 'timestamp_ms' }),
+    /** A sender claimed the row until this time (so two senders never send the same row at once). */
+    claimedUntil: integer('claimed_until', { mode: 'timestamp_ms' }),
   },
   (t) => [index('mail_outbox_status_idx').on(t.status)],
+);
+
+/** Files attached to an outbox message (e.g. a bulletin PDF), stored with it so a retry sends the same bytes. */
+export const mailAttachments = sqliteTable(
+  'mail_attachments',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    outboxId: integer('outbox_id')
+      .notNull()
+      .references(() => mailOutbox.id, { onDelete: 'cascade' }),
+    filename: text('filename').notNull(),
+    contentType: text('content_type').notNull(),
+    content: blob('content', { mode: 'buffer' }).notNull(),
+  },
+  (t) => [index('mail_attachments_outbox_idx').on(t.outboxId)],
 );
 
 /** Office-wide settings as key/value text (e.g. the office name shown on documents). */
@@ -202,6 +223,173 @@ export const assessmentRuns = sqliteTable(
   ],
 );
 
+/**
+ * Bulletins (issue 6): one row per bulletin with its working draft. `documentJson` is the draft's TipTap JSON
+ * (shared/bulletins/document.ts); `revision` goes up by one on every save (a save names the revision it edits and
+ * is refused with 409 when that is not the current one). `draftVersion` is the number the draft becomes when
+ * approved; `latestVersion` the newest locked version. `state` follows shared/bulletins/workflow.ts and only
+ * changes by a conditional UPDATE (WHERE state = the state read), so two approvals at once make one version.
+ */
+export const bulletins = sqliteTable(
+  'bulletins',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    number: text('number').notNull().unique(),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    title: text('title').notNull(),
+    state: text('state', { enum: BULLETIN_STATES }).notNull().default('draft'),
+    documentJson: text('document_json').notNull(),
+    revision: integer('revision').notNull().default(1),
+    draftVersion: integer('draft_version').notNull().default(1),
+    latestVersion: integer('latest_version'),
+    /** Writer of the current draft (creator, or whoever started the new version). */
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    updatedById: integer('updated_by_id').references(() => users.id, { onDelete: 'set null' }),
+    /** The author's written reason for submitting with out-of-date figures (cleared when a new draft version starts). */
+    staleReason: text('stale_reason'),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('bulletins_object_idx').on(t.objectId), index('bulletins_state_idx').on(t.state)],
+);
+
+/**
+ * Locked versions: written once at approval and never changed except `status` (approved -> distributed ->
+ * superseded / withdrawn). `contentJson` is the canonical JSON (keys sorted, no whitespace) of VersionContent
+ * (shared/schemas/bulletins.ts: document, figure snapshots with their runs, sign-off) and `sha256` its SHA-256.
+ */
+export const bulletinVersions = sqliteTable(
+  'bulletin_versions',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    bulletinId: integer('bulletin_id')
+      .notNull()
+      .references(() => bulletins.id, { onDelete: 'restrict' }),
+    version: integer('version').notNull(),
+    status: text('status', { enum: VERSION_STATUSES }).notNull().default('approved'),
+    title: text('title').notNull(),
+    contentJson: text('content_json').notNull(),
+    sha256: text('sha256').notNull(),
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    reviewerId: integer('reviewer_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [uniqueIndex('bulletin_versions_bulletin_version_idx').on(t.bulletinId, t.version)],
+);
+
+/** Review history: every transition with its actor and comment (request-changes notes, sign-off comments, ...). */
+export const bulletinEvents = sqliteTable(
+  'bulletin_events',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    bulletinId: integer('bulletin_id')
+      .notNull()
+      .references(() => bulletins.id, { onDelete: 'cascade' }),
+    action: text('action').notNull(),
+    fromState: text('from_state', { enum: BULLETIN_STATES }),
+    toState: text('to_state', { enum: BULLETIN_STATES }),
+    version: integer('version'),
+    actorId: integer('actor_id').references(() => users.id, { onDelete: 'set null' }),
+    comment: text('comment'),
+    /** Extra JSON (e.g. the confirmed figures of a sign-off). */
+    detailJson: text('detail_json'),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('bulletin_events_bulletin_idx').on(t.bulletinId, t.id)],
+);
+
+/** Submissions with out-of-date figures: the author's written reason and which figures were stale (kept). */
+export const staleFigureConfirmations = sqliteTable(
+  'stale_figure_confirmations',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    bulletinId: integer('bulletin_id')
+      .notNull()
+      .references(() => bulletins.id, { onDelete: 'cascade' }),
+    draftVersion: integer('draft_version').notNull(),
+    revision: integer('revision').notNull(),
+    reason: text('reason').notNull(),
+    /** JSON [{index, runId, latestRunId, quantity}] of the stale figures at submission. */
+    figuresJson: text('figures_json').notNull(),
+    userId: integer('user_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('stale_figure_confirmations_bulletin_idx').on(t.bulletinId)],
+);
+
+export const stakeholderLists = sqliteTable('stakeholder_lists', {
+  id: integer('id').primaryKey({ autoIncrement: true }),
+  name: text('name').notNull().unique(),
+  kind: text('kind', { enum: STAKEHOLDER_KINDS }).notNull(),
+  description: text('description').notNull().default(''),
+  createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+});
+
+/** A member is a user (userId; liaisons get a briefing in their inbox) or an outside address (email + name). */
+export const stakeholderMembers = sqliteTable(
+  'stakeholder_members',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    listId: integer('list_id')
+      .notNull()
+      .references(() => stakeholderLists.id, { onDelete: 'cascade' }),
+    userId: integer('user_id').references(() => users.id, { onDelete: 'cascade' }),
+    email: text('email'),
+    name: text('name'),
+  },
+  (t) => [index('stakeholder_members_list_idx').on(t.listId)],
+);
+
+/** One sending of a locked version to a stakeholder list (at most once per version and list). */
+export const distributions = sqliteTable(
+  'distributions',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    bulletinId: integer('bulletin_id')
+      .notNull()
+      .references(() => bulletins.id, { onDelete: 'restrict' }),
+    versionId: integer('version_id')
+      .notNull()
+      .references(() => bulletinVersions.id, { onDelete: 'restrict' }),
+    listId: integer('list_id')
+      .notNull()
+      .references(() => stakeholderLists.id, { onDelete: 'restrict' }),
+    /** The list's name and kind when sent (the list may change later). */
+    listName: text('list_name').notNull(),
+    listKind: text('list_kind', { enum: STAKEHOLDER_KINDS }).notNull(),
+    sentById: integer('sent_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [uniqueIndex('distributions_version_list_idx').on(t.versionId, t.listId), index('distributions_bulletin_idx').on(t.bulletinId)],
+);
+
+/**
+ * Per-recipient delivery rows: the e-mail is the linked outbox row (its status and attempts are the delivery log);
+ * for users the row is also their briefing, acknowledged with `acknowledgedAt`.
+ */
+export const distributionRecipients = sqliteTable(
+  'distribution_recipients',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    distributionId: integer('distribution_id')
+      .notNull()
+      .references(() => distributions.id, { onDelete: 'cascade' }),
+    userId: integer('user_id').references(() => users.id, { onDelete: 'set null' }),
+    email: text('email').notNull(),
+    name: text('name').notNull(),
+    outboxId: integer('outbox_id').references(() => mailOutbox.id, { onDelete: 'set null' }),
+    acknowledgedAt: integer('acknowledged_at', { mode: 'timestamp_ms' }),
+    acknowledgeComment: text('acknowledge_comment'),
+  },
+  (t) => [
+    uniqueIndex('distribution_recipients_distribution_email_idx').on(t.distributionId, t.email),
+    index('distribution_recipients_user_idx').on(t.userId),
+  ],
+);
+
 export type UserRow = typeof users.$inferSelect;
 export type NewUserRow = typeof users.$inferInsert;
 export type InvitationRow = typeof invitations.$inferSelect;
@@ -209,3 +397,5 @@ export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 export type TrackedObjectRow = typeof trackedObjects.$inferSelect;
 export type OrbitSolutionRow = typeof orbitSolutions.$inferSelect;
 export type AssessmentRunRow = typeof assessmentRuns.$inferSelect;
+export type BulletinRow = typeof bulletins.$inferSelect;
+export type BulletinVersionRow = typeof bulletinVersions.$inferSelect;
