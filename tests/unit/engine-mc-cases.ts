@@ -28,7 +28,18 @@ export type NeaCase = {
 
 export function neaCase(
   eph: PlanetEphemeris,
-  opts: { startTdbDays: number; encounterTdbDays: number; missKm: number; a?: number; e?: number; incDeg?: number; offsetAngleRad?: number },
+  opts: {
+    startTdbDays: number;
+    encounterTdbDays: number;
+    missKm: number;
+    a?: number;
+    e?: number;
+    incDeg?: number;
+    offsetAngleRad?: number;
+    /** Build the state this many days before the encounter on the straight relative path (default 0); use it for
+     *  impacting cases, so that the backward integration starts outside the Earth. */
+    leadDays?: number;
+  },
 ): NeaCase {
   const s = new Float64Array(6);
   eph.stateInto(2, opts.encounterTdbDays, s);
@@ -44,11 +55,17 @@ export function neaCase(
   const off2 = unit(crs(rel, off1));
   const th = opts.offsetAngleRad ?? 0;
   const off: Vec3 = [0, 1, 2].map((k) => Math.cos(th) * off1[k] + Math.sin(th) * off2[k]) as Vec3;
-  const rAst: Vec3 = [0, 1, 2].map((k) => rE[k] + (off[k] * opts.missKm) / AU_KM) as Vec3;
+  const lead = opts.leadDays ?? 0;
+  // With a lead time: the Earth's state at T - lead plus the straight relative path (off * miss - v_rel lead, v_rel);
+  // gravitational focusing then bends it inwards, so the actual miss is a little smaller than missKm.
+  const sE = new Float64Array(6);
+  eph.stateInto(2, opts.encounterTdbDays - lead, sE);
+  const rAst: Vec3 = [0, 1, 2].map((k) => sE[k] + (off[k] * opts.missKm) / AU_KM - rel[k] * lead) as Vec3;
+  const vStart: Vec3 = lead === 0 ? vAst : ([0, 1, 2].map((k) => sE[3 + k] + rel[k]) as Vec3);
   const back = propagate({
     positionAu: rAst,
-    velocityAuD: vAst,
-    fromTdbDays: opts.encounterTdbDays,
+    velocityAuD: vStart,
+    fromTdbDays: opts.encounterTdbDays - lead,
     toTdbDays: opts.startTdbDays,
     model: 'n-body',
     ephemeris: eph,
