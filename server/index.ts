@@ -11,6 +11,7 @@ import { closeDb, openDb } from './db/client';
 import { runMigrations } from './db/migrate';
 import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
+import { queueDemoRuns } from './services/runs/demoRuns';
 import { createRunner } from './services/runs/runner';
 import { ROLE_LABELS } from '../shared/roles';
 
@@ -54,6 +55,8 @@ async function main(): Promise<void> {
   void services.mail.deliverPending();
 
   // Assessment runs: resumes runs a previous process left behind, then works the queue (server/services/runs).
+  const demoRuns = queueDemoRuns(db, services.runs, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
+  if (demoRuns.length) console.log(`Demo assessment runs queued: ${demoRuns.map((id) => `#${id}`).join(', ')} (computed in the background).`);
   const runner = createRunner(db, services.runs);
   runner.start();
 

@@ -3,12 +3,13 @@
 // heartbeating and another runner took the run over) cannot write its late answer.
 // The engine is replaced here by a test executor that waits and answers a small JSON naming the runner: these
 // tests are about the queue (claim, lease, fencing), which does not depend on what the work computes. The real
-// engine path is covered by tests/api/runs.test.ts.
+// engine path is covered by tests/api/runs.test.ts and by the demo runs below (real engine).
 // Source: common practice for lease-based job queues (atomic claim, heartbeat, fencing on the lease owner), no source.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { assessmentRuns, orbitSolutions } from '../../server/db/schema';
 import type { Executor } from '../../server/services/runs/executor';
+import { queueDemoRuns } from '../../server/services/runs/demoRuns';
 import { createRunner, type Runner } from '../../server/services/runs/runner';
 import { startTestServer, type TestServer } from '../helpers/testServer';
 
@@ -101,5 +102,26 @@ describe('two runners on one database', () => {
     await r.stop();
     expect(rowOf(id).error).toMatch(/interrupted 3 times/);
     expect(log.filter((e) => e.runId === id)).toEqual([]);
+  });
+});
+
+describe('demo runs', () => {
+  it('queues one run per demo object on first start only, and the real engine completes them', async () => {
+    const demo = await startTestServer({ runner: { pollMs: 100 } });
+    try {
+      const analystEmail = 'analyst@hspdo.example';
+      const ids = queueDemoRuns(demo.db, demo.services.runs, analystEmail);
+      expect(ids.length).toBe(3);
+      expect(queueDemoRuns(demo.db, demo.services.runs, analystEmail)).toEqual([]); // a restart queues nothing new
+      await expect.poll(() => ids.map((id) => demo.services.runs.get(id).status), { timeout: 60_000, interval: 200 }).toEqual(['done', 'done', 'done']);
+      // the asteroid's run finds its designed 2034 encounter (server/db/demo/make-nea.ts) and fills the summary
+      const nea = demo.services.objects.list({ page: 1, pageSize: 10, sort: 'designation', q: 'HSO-26-N4' }).items[0];
+      expect(nea.nextCloseApproachAt?.slice(0, 10)).toBe('2034-09-17');
+      expect(nea.maxImpactProbability).toBeGreaterThan(0);
+      expect(nea.lastRunAt).not.toBeNull();
+      for (const o of demo.services.objects.list({ page: 1, pageSize: 10, sort: 'designation' }).items) expect(o.lastRunAt, o.designation).not.toBeNull();
+    } finally {
+      await demo.close();
+    }
   });
 });
