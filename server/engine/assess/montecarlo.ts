@@ -35,7 +35,7 @@ export type McOptions = AssessOptions & {
   window?: WindowOptions;
 };
 
-export type McRunResult = McResult & {
+export type McRunResult = Omit<McResult, 'windows'> & {
   windows: McWindowDetail[];
   method: string;
   clonesWithImpact: number;
