@@ -13,6 +13,11 @@ export const BODY_RADIUS_KM: Record<string, number> = { earth: 6378.137, moon: 1
 
 export type BPlaneUnit = 'km' | 're';
 
+/** "earth" -> "Earth". */
+export function bodyName(body: string): string {
+  return body.charAt(0).toUpperCase() + body.slice(1);
+}
+
 export type BPlaneSvgOptions = {
   width?: number;
   height?: number;
@@ -148,7 +153,7 @@ export function bPlaneSvg(result: AssessmentResult, approachIndex: number, opts:
   const unit = opts.unit ?? 'km';
   const d = bPlaneData(result, approachIndex);
   const a = d.approach;
-  const title = opts.title ?? `b-plane: ${result.object}, ${a.body} ${a.utc.slice(0, 10)}`;
+  const title = opts.title ?? `b-plane: ${result.object}, ${bodyName(a.body)} encounter ${a.utc.slice(0, 10)}`;
   const parts: string[] = [];
   parts.push(
     `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="Helvetica, Arial, sans-serif" font-size="12">`,
@@ -166,7 +171,7 @@ export function bPlaneSvg(result: AssessmentResult, approachIndex: number, opts:
   const L = bPlaneLayout(bPlaneBounds(d, opts.view), width, height);
   const { box } = L;
   const u = unitKm(unit);
-  const uLabel = unit === 're' ? 'Earth radii (6378.137 km)' : 'km';
+  const uLabel = unit === 're' ? 'Earth radii' : 'km';
   const clipId = `bp-clip-${approachIndex}`;
   parts.push(`<defs><clipPath id="${clipId}"><rect x="${n2(box.x)}" y="${n2(box.y)}" width="${n2(box.w)}" height="${n2(box.h)}"/></clipPath></defs>`);
   parts.push(`<rect data-role="plot-area" x="${n2(box.x)}" y="${n2(box.y)}" width="${n2(box.w)}" height="${n2(box.h)}" fill="#f8fafc" stroke="${C.axis}"/>`);

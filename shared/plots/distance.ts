@@ -13,7 +13,7 @@
 import type { Approach, AssessmentResult } from '../schemas/assessment';
 import { convertDistanceKm, DISTANCE_UNITS, type DistanceUnit } from '../format';
 import { esc, n2, niceTicks, PLOT_COLORS as C, tickLabel } from './svg';
-import { BODY_RADIUS_KM } from './bplane';
+import { BODY_RADIUS_KM, bodyName } from './bplane';
 
 /** GM (km^3/s^2) of the bodies close approaches are reported for: DE440 (Park et al. 2021), as in server/engine/constants.ts. */
 export const BODY_GM_KM3_S2: Record<string, number> = {
@@ -138,8 +138,8 @@ export function distanceSvg(result: AssessmentResult, approachIndex: number, opt
   const unit = opts.unit ?? 'km';
   const s = distanceSeries(result, approachIndex, opts);
   const a = result.approaches[approachIndex];
-  const title = opts.title ?? `Distance from ${a.body}: ${result.object}, closest approach ${a.utc.slice(0, 16).replace('T', ' ')} UTC`;
-  const box = { x: 84, y: 40, w: width - 84 - 20, h: height - 40 - 80 };
+  const title = opts.title ?? `Distance from ${bodyName(a.body)}: ${result.object}, closest approach ${a.utc.slice(0, 16).replace('T', ' ')} UTC`;
+  const box = { x: 84, y: 40, w: width - 84 - 20, h: height - 40 - 96 };
   const conv = (km: number) => convertDistanceKm(km, unit);
   const ys = [...s.nominalKm, ...(s.lowKm ?? []), ...(s.highKm ?? [])].map(conv);
   if (s.planetRadiusKm !== null) ys.push(conv(s.planetRadiusKm));
@@ -165,7 +165,7 @@ export function distanceSvg(result: AssessmentResult, approachIndex: number, opt
     p.push(`<line x1="${n2(box.x)}" y1="${n2(y)}" x2="${n2(box.x + box.w)}" y2="${n2(y)}" stroke="${C.grid}"/>`);
     p.push(`<text x="${n2(box.x - 6)}" y="${n2(y + 4)}" text-anchor="end" fill="${C.text}">${esc(tickLabel(t))}</text>`);
   }
-  p.push(`<text x="${n2(box.x + box.w / 2)}" y="${n2(box.y + box.h + 34)}" text-anchor="middle" fill="${C.text}">hours from nominal closest approach (TDB ${esc(a.epochTdbJd.toFixed(5))})</text>`);
+  p.push(`<text x="${n2(box.x + box.w / 2)}" y="${n2(box.y + box.h + 34)}" text-anchor="middle" fill="${C.text}">hours from the nominal closest approach (JD ${esc(a.epochTdbJd.toFixed(5))} TDB)</text>`);
   p.push(`<text transform="translate(18 ${n2(box.y + box.h / 2)}) rotate(-90)" text-anchor="middle" fill="${C.text}">distance (${esc(DISTANCE_UNITS[unit].label)})</text>`);
   if (s.lowKm && s.highKm) {
     const up = s.tHours.map((t, i) => `${i === 0 ? 'M' : 'L'}${n2(X(t))} ${n2(Y(conv(s.highKm![i])))}`).join('');
@@ -179,15 +179,23 @@ export function distanceSvg(result: AssessmentResult, approachIndex: number, opt
   if (s.planetRadiusKm !== null) {
     const y = Y(conv(s.planetRadiusKm));
     p.push(`<line data-role="surface" x1="${n2(box.x)}" y1="${n2(y)}" x2="${n2(box.x + box.w)}" y2="${n2(y)}" stroke="${C.capture}" stroke-dasharray="5 3"/>`);
-    p.push(`<text x="${n2(box.x + box.w - 4)}" y="${n2(y - 4)}" text-anchor="end" font-size="10" fill="${C.capture}">${esc(a.body)} surface</text>`);
+    p.push(`<text x="${n2(box.x + box.w - 4)}" y="${n2(y - 4)}" text-anchor="end" font-size="10" fill="${C.capture}">${esc(bodyName(a.body))} surface</text>`);
   }
   const nom = s.tHours.map((t, i) => `${i === 0 ? 'M' : 'L'}${n2(X(t))} ${n2(Y(conv(s.nominalKm[i])))}`).join('');
   p.push(`<path data-role="nominal" d="${nom}" fill="none" stroke="${C.nominal}" stroke-width="1.8"/>`);
   const ly = box.y + box.h + 54;
   p.push(
     `<text x="${n2(box.x)}" y="${n2(ly)}" fill="${C.text}"><tspan fill="${C.nominal}">—</tspan> nominal${s.lowKm ? `   <tspan fill="${C.sigma1}">■</tspan> 3σ spread` : ''}</text>`,
-    `<text x="${n2(box.x)}" y="${n2(ly + 14)}" font-size="10" fill="${C.muted}">${esc(s.method)}</text>`,
   );
+  // The method note, wrapped to the plot width (about 5.2 px per character at 10 px).
+  const maxChars = Math.max(40, Math.floor(box.w / 5.2));
+  const words = s.method.split(' ');
+  const lines: string[] = [''];
+  for (const w of words) {
+    if ((lines[lines.length - 1] + ' ' + w).trim().length > maxChars) lines.push(w);
+    else lines[lines.length - 1] = (lines[lines.length - 1] + ' ' + w).trim();
+  }
+  lines.slice(0, 2).forEach((line, i) => p.push(`<text x="${n2(box.x)}" y="${n2(ly + 14 + 12 * i)}" font-size="10" fill="${C.muted}">${esc(line)}</text>`));
   if (opts.caption) p.push(`<text x="${n2(box.x)}" y="${n2(height - 6)}" font-size="10" fill="${C.muted}">${esc(opts.caption)}</text>`);
   p.push('</svg>');
   return p.join('\n');
