@@ -40,9 +40,9 @@ function countingExecutor() {
   return { executor, stats };
 }
 
-async function signedIn(url: string): Promise<Record<string, ApiClient>> {
+async function signedIn(url: string, roles?: string[]): Promise<Record<string, ApiClient>> {
   const as: Record<string, ApiClient> = {};
-  for (const u of DEMO_USERS) {
+  for (const u of DEMO_USERS.filter((d) => !roles || roles.includes(d.role))) {
     const c = new ApiClient(url);
     expect((await c.signIn(u.email, u.password)).status).toBe(200);
     as[u.role] = c;
@@ -162,6 +162,21 @@ describe('runs on one server', () => {
     expect(mid.some((r) => r.progress.etaS !== null && r.progress.etaS > 0)).toBe(true);
     expect((last.result as any).provenance.methods).toEqual(['linear', 'lov']);
   });
+
+  it('runs Monte Carlo through the engine\'s worker pool and records its seed and clones', async () => {
+    const res = await as.analyst.request('POST', '/api/runs', { body: { solutionId: nea.solution.id, until: UNTIL_2035, methods: ['mc'], clones: 64, seed: 5 } });
+    expect(res.status).toBe(202);
+    const { last } = await pollRun(as.analyst, res.body.id, (r) => r.status === 'done' || r.status === 'failed', 60_000);
+    expect(last.status, last.error ?? '').toBe('done');
+    expect([last.provenance!.seed, last.provenance!.clones]).toEqual([5, 64]);
+    const enc = (last.result as any).approaches.find((a: any) => a.utc.startsWith('2034-09-17'));
+    const mc = enc.impactProbability.monteCarlo;
+    expect(mc.samples).toBe(64);
+    expect(mc.hits).toBeGreaterThanOrEqual(0);
+    expect(mc.estimate).toBeCloseTo(mc.hits / 64, 12);
+    // a Wilson 95 % interval contains the point estimate (Wilson 1927; METHODS §6.5)
+    if (mc.hits > 0) expect(mc.ci95[0] <= mc.estimate && mc.estimate <= mc.ci95[1]).toBe(true);
+  }, 90_000);
 
   it('records a failure with the engine\'s reason', async () => {
     // A request the API would refuse (window ending before the epoch) written straight into the queue: the
@@ -302,12 +317,12 @@ describe('runs across a restart', () => {
 
   it('picks up a run whose process died mid-run once its lease expires, and a cleanly stopped one at once; each finishes exactly once', async () => {
     const { executor, stats } = countingExecutor();
-    const runnerOpts = { leaseMs: 900, pollMs: 100, progressWriteMs: 100, executor };
+    const runnerOpts = { leaseMs: 2000, pollMs: 100, progressWriteMs: 100, executor };
 
     // 1. A server starts a run and dies in the middle of it (no clean-up: the row stays 'running' with its lease).
     const s1 = await startTestServer({ databaseFile, runner: runnerOpts });
     servers.add(s1);
-    let as = await signedIn(s1.url);
+    let as = await signedIn(s1.url, ['analyst']);
     const nea = await demoSolution(as.analyst, NEA);
     const res = await as.analyst.request('POST', '/api/runs', { body: { solutionId: nea.solution.id, until: UNTIL_2035, methods: ['linear', 'lov'] } });
     expect(res.status).toBe(202);
@@ -320,7 +335,7 @@ describe('runs across a restart', () => {
     // 2. A new server on the same file: the run is claimed again after the lease ran out and finishes.
     const s2 = await startTestServer({ databaseFile, runner: runnerOpts });
     servers.add(s2);
-    as = await signedIn(s2.url);
+    as = await signedIn(s2.url, ['analyst']);
     const { last, seen } = await pollRun(as.analyst, id, (r) => r.status === 'done' || r.status === 'failed');
     expect(last.status, last.error ?? '').toBe('done');
     expect(last.attempts).toBe(2);
@@ -338,7 +353,7 @@ describe('runs across a restart', () => {
     expect(rowOf(id2)).toMatchObject({ status: 'queued', attempts: 1, leaseOwner: null, hasResult: 0 });
     const s3 = await startTestServer({ databaseFile, runner: { ...runnerOpts, leaseMs: 60_000 } });
     servers.add(s3);
-    as = await signedIn(s3.url);
+    as = await signedIn(s3.url, ['analyst']);
     const done2 = await pollRun(as.analyst, id2, (r) => r.status === 'done' || r.status === 'failed');
     expect(done2.last.status, done2.last.error ?? '').toBe('done');
     expect(done2.last.attempts).toBe(2);
