@@ -4,55 +4,23 @@
  * derived from the version hash, no current time anywhere). Layout constants and the standing caution live in
  * templates/pdf/.
  *
- * The input is everything the PDF needs, already frozen with the version: the document, the figure snapshots,
- * the engine results of the runs the document embeds (risk tables and plots), and the sign-off.
+ * The input is the locked version exactly as stored (shared/schemas/bulletins.ts BulletinVersion: document, figure
+ * snapshots, sign-off, SHA-256) plus what the PDF shows beside it: the office name, the object's name, the
+ * distribution marking, and the frozen engine results of the runs the document embeds (risk tables and plots).
  */
+import type { BulletinVersion } from '../../../shared/schemas/bulletins';
 
-/** A TipTap/ProseMirror JSON node (shared/bulletins/document.ts validates the full shape). */
-export type PdfDocNode = {
-  type: string;
-  attrs?: Record<string, unknown>;
-  content?: PdfDocNode[];
-  text?: string;
-  marks?: { type: string; attrs?: Record<string, unknown> }[];
-};
-
-/** A frozen figure value (shared/bulletins/figures.ts FigureValue); only the fields the PDF reads are required. */
-export type PdfFigureSnapshot = {
-  quantity: string;
-  runId: number;
-  text: string;
-  approach?: { body: string; epochTdbJd: number } | null;
-  [k: string]: unknown;
-};
-
-export type BulletinVersionForPdf = {
-  bulletinId: number;
-  /** Bulletin number as shown to readers, e.g. "2026-014". */
-  bulletinNumber: string;
-  version: number;
+export type BulletinVersionForPdf = BulletinVersion & {
   officeName: string;
-  object: { designation: string; name: string | null };
-  title: string;
-  /** Distribution marking, e.g. "OFFICIAL - for government liaisons". */
+  /** The object's name (its designation is in the version), null when it has none. */
+  objectName: string | null;
+  /** Distribution marking printed in the title block and the footer, e.g. "OFFICIAL - government liaisons only". */
   distributionMarking: string;
-  /** ISO 8601 UTC time of approval (the version's freezing time; used for the dates in the PDF). */
-  approvedAtUtc: string;
-  /** SHA-256 (hex) of the version's canonical JSON. */
-  sha256: string;
-  document: PdfDocNode;
-  /** Snapshot of every linked figure, in document order (matched to linkedFigure nodes by their attrs). */
-  figures: PdfFigureSnapshot[];
-  /** Engine assess JSON of each run embedded by a riskTable or plot node, keyed by run id. */
-  runs: Record<string, { runId: number; result: Record<string, unknown> }>;
-  author: { name: string };
-  signOff: {
-    reviewer: { name: string };
-    atUtc: string;
-    comment: string | null;
-    /** Texts of the figures the reviewer confirmed. */
-    confirmedFigures: PdfFigureSnapshot[];
-  };
+  /**
+   * The engine assess JSON (`result` of the run) of each run in `runIds`, keyed by run id. Risk tables and plots are
+   * drawn from these; linked figures come from the version's own snapshots.
+   */
+  runs: Record<string, { runId: number; result: unknown }>;
 };
 
 export async function renderBulletinPdf(version: BulletinVersionForPdf): Promise<Buffer> {

@@ -1,0 +1,180 @@
+/**
+ * Fonts of the bulletin PDF: Merriweather (body) embedded from @fontsource's .woff files (pdfkit cannot embed the
+ * .woff2 files: doc.end() throws a RangeError), with fallbacks for glyphs Merriweather lacks: Noto Serif (latin,
+ * latin-ext, greek subsets: sigma, xi, zeta, Delta ...) and Noto Sans Math (≈ ≤ ≥ ∞ √ →, which neither Merriweather
+ * nor Noto Serif has). Text is split into runs by glyph coverage and each run is set in the first font of the chain
+ * that has all of its characters.
+ */
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import path from 'node:path';
+import { inflateSync } from 'node:zlib';
+
+export type FontStyle = 'regular' | 'bold' | 'italic' | 'boldItalic';
+
+const require = createRequire(import.meta.url);
+function fontsourceDir(pkg: string): string {
+  return path.join(path.dirname(require.resolve(`@fontsource/${pkg}/package.json`)), 'files');
+}
+
+const WEIGHT: Record<FontStyle, [number, 'normal' | 'italic']> = {
+  regular: [400, 'normal'],
+  bold: [700, 'normal'],
+  italic: [400, 'italic'],
+  boldItalic: [700, 'italic'],
+};
+
+/** Font files of one style, in fallback order: [registered name, file]. */
+export function fontChain(style: FontStyle): [string, string][] {
+  const [w, s] = WEIGHT[style];
+  const mw = fontsourceDir('merriweather');
+  const ns = fontsourceDir('noto-serif');
+  const math = fontsourceDir('noto-sans-math');
+  return [
+    [`mw-latin-${style}`, path.join(mw, `merriweather-latin-${w}-${s}.woff`)],
+    [`mw-latinext-${style}`, path.join(mw, `merriweather-latin-ext-${w}-${s}.woff`)],
+    [`ns-latin-${style}`, path.join(ns, `noto-serif-latin-${w}-${s}.woff`)],
+    [`ns-latinext-${style}`, path.join(ns, `noto-serif-latin-ext-${w}-${s}.woff`)],
+    [`ns-greek-${style}`, path.join(ns, `noto-serif-greek-${w}-${s}.woff`)],
+    [`ns-math-${style}`, path.join(ns, `noto-serif-math-${w}-${s}.woff`)],
+    // Noto Sans Math has one weight and no italic.
+    ['nsm-regular', path.join(math, 'noto-sans-math-latin-400-normal.woff')],
+  ];
+}
+
+export const STYLES: FontStyle[] = ['regular', 'bold', 'italic', 'boldItalic'];
+
+export function styleOf(bold: boolean, italic: boolean): FontStyle {
+  return bold ? (italic ? 'boldItalic' : 'bold') : italic ? 'italic' : 'regular';
+}
+
+/** The primary (Merriweather) font name of a style. */
+export function primaryFont(style: FontStyle): string {
+  return `mw-latin-${style}`;
+}
+
+type GlyphFont = { hasGlyphForCodePoint(cp: number): boolean };
+type DocWithFont = PDFKit.PDFDocument & { _font: { font: GlyphFont; ascender: number } };
+
+/**
+ * WOFF 1.0 -> plain sfnt (TrueType/OpenType) bytes (W3C WOFF File Format 1.0, sections 4-5): the same tables,
+ * inflated with node's zlib. fontkit would inflate WOFF tables itself with a pure-JS inflater, which costs about
+ * 2 s per bulletin for the 25 font files; converted once per process here.
+ */
+export function woffToSfnt(woff: Buffer): Buffer {
+  if (woff.readUInt32BE(0) !== 0x774f4646) throw new Error('not a WOFF 1.0 file');
+  const flavor = woff.readUInt32BE(4);
+  const numTables = woff.readUInt16BE(12);
+  const tables: { tag: number; checksum: number; data: Buffer }[] = [];
+  for (let i = 0; i < numTables; i++) {
+    const e = 44 + 20 * i;
+    const tag = woff.readUInt32BE(e), offset = woff.readUInt32BE(e + 4), compLength = woff.readUInt32BE(e + 8);
+    const origLength = woff.readUInt32BE(e + 12), checksum = woff.readUInt32BE(e + 16);
+    const raw = woff.subarray(offset, offset + compLength);
+    const data = compLength < origLength ? inflateSync(raw) : Buffer.from(raw);
+    if (data.length !== origLength) throw new Error('WOFF table length mismatch');
+    tables.push({ tag, checksum, data });
+  }
+  let searchRange = 1, entrySelector = 0;
+  while (searchRange * 2 <= numTables) {
+    searchRange *= 2;
+    entrySelector++;
+  }
+  const header = Buffer.alloc(12 + 16 * numTables);
+  header.writeUInt32BE(flavor, 0);
+  header.writeUInt16BE(numTables, 4);
+  header.writeUInt16BE(searchRange * 16, 6);
+  header.writeUInt16BE(entrySelector, 8);
+  header.writeUInt16BE(numTables * 16 - searchRange * 16, 10);
+  const parts: Buffer[] = [header];
+  let offset = header.length;
+  tables.forEach((t, i) => {
+    const r = 12 + 16 * i;
+    header.writeUInt32BE(t.tag, r);
+    header.writeUInt32BE(t.checksum, r + 4);
+    header.writeUInt32BE(offset, r + 8);
+    header.writeUInt32BE(t.data.length, r + 12);
+    const pad = (4 - (t.data.length % 4)) % 4;
+    parts.push(t.data, Buffer.alloc(pad));
+    offset += t.data.length + pad;
+  });
+  return Buffer.concat(parts);
+}
+
+const sfntCache = new Map<string, Buffer>();
+function fontBytes(file: string): Buffer {
+  let b = sfntCache.get(file);
+  if (!b) {
+    b = woffToSfnt(readFileSync(file));
+    sfntCache.set(file, b);
+  }
+  return b;
+}
+
+/** Registers every font file and answers coverage questions for one document. */
+export class FontSet {
+  private readonly coverage = new Map<string, GlyphFont>();
+  private readonly chains = new Map<FontStyle, string[]>();
+  private readonly ascenders = new Map<string, number>();
+
+  constructor(private readonly doc: PDFKit.PDFDocument) {
+    for (const style of STYLES) {
+      const names: string[] = [];
+      for (const [name, file] of fontChain(style)) {
+        if (!this.coverage.has(name)) {
+          doc.registerFont(name, fontBytes(file));
+          doc.font(name);
+          this.coverage.set(name, (doc as DocWithFont)._font.font);
+          this.ascenders.set(name, (doc as DocWithFont)._font.ascender);
+        }
+        names.push(name);
+      }
+      this.chains.set(style, names);
+    }
+    doc.font(primaryFont('regular'));
+  }
+
+  /** Ascender of a registered font, in 1/1000 em (pdfkit's unit). */
+  ascender(name: string): number {
+    return this.ascenders.get(name)!;
+  }
+
+  /** First font of the style's chain that has the code point, or null (no font has it). */
+  fontFor(style: FontStyle, cp: number): string | null {
+    for (const name of this.chains.get(style)!) if (this.coverage.get(name)!.hasGlyphForCodePoint(cp)) return name;
+    return null;
+  }
+
+  /**
+   * Split a text into runs that each one font can set. Spaces and other whitespace stay in the current run (every
+   * font of the chain has them), so a switch happens only at a character the current font lacks. A character that no
+   * font of the chain has is set as "?" in the primary font (never an empty box).
+   */
+  split(style: FontStyle, text: string): { font: string; text: string }[] {
+    const out: { font: string; text: string }[] = [];
+    const primary = primaryFont(style);
+    for (const ch of text) {
+      const cp = ch.codePointAt(0)!;
+      const last = out[out.length - 1];
+      let font: string;
+      let piece = ch;
+      if (ch === '\n' || ch === '\r') {
+        // Line breaks are layout, not glyphs: they stay in the current run.
+        font = last ? last.font : primary;
+      } else if (/\s/.test(ch) && last && this.coverage.get(last.font)!.hasGlyphForCodePoint(cp)) {
+        font = last.font;
+      } else {
+        const f = this.fontFor(style, cp);
+        if (f === null) {
+          font = primary;
+          piece = '?';
+        } else {
+          font = f;
+        }
+      }
+      if (last && last.font === font) last.text += piece;
+      else out.push({ font, text: piece });
+    }
+    return out;
+  }
+}

@@ -1,0 +1,183 @@
+/**
+ * Bulletin PDF (issue 6 items 5 and 8): renderBulletinPdf on a locked version whose figures, risk table and plots
+ * come from a real engine result (assess() with the linear method on a synthetic encounter, tests/api/
+ * bulletinPdfFixture.ts). The PDF is read back with poppler-utils (pdftotext, pdffonts, pdfinfo, pdftoppm), an
+ * independent PDF reader, so the checks do not trust pdfkit's own view of what it wrote.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { renderBulletinPdf, type BulletinVersionForPdf } from '../../server/services/pdf';
+import { FontSet } from '../../server/services/pdf/fonts';
+import { STANDING_CAUTION } from '../../templates/pdf/layout';
+import PDFDocument from 'pdfkit';
+import { bulletinVersionFixture } from './bulletinPdfFixture';
+
+const dir = mkdtempSync(path.join(tmpdir(), 'tocsin-pdf-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function save(name: string, pdf: Buffer): string {
+  const file = path.join(dir, name);
+  writeFileSync(file, pdf);
+  return file;
+}
+const run = (cmd: string, args: string[]) => execFileSync(cmd, args, { encoding: 'utf8' });
+/** Text of a PDF (or of one page) with runs of whitespace as one space: wrapping must not matter. */
+const text = (file: string, page?: number) =>
+  run('pdftotext', [...(page ? ['-f', String(page), '-l', String(page)] : []), '-enc', 'UTF-8', file, '-']).replace(/\s+/g, ' ');
+const pages = (file: string) => Number(/Pages:\s+(\d+)/.exec(run('pdfinfo', [file]))![1]);
+
+let version: BulletinVersionForPdf;
+let result: Record<string, unknown>;
+let pdf: Buffer;
+let file: string;
+
+beforeAll(async () => {
+  ({ version, result } = await bulletinVersionFixture());
+  pdf = await renderBulletinPdf(version);
+  file = save('bulletin.pdf', pdf);
+}, 30_000);
+
+describe('bulletin PDF content (read back with pdftotext)', () => {
+  it('shows every linked figure as frozen in the version, and the figures are the engine result’s numbers', () => {
+    const t = text(file);
+    expect(version.figures.length).toBeGreaterThanOrEqual(8);
+    for (const f of version.figures) expect(t).toContain(f.value.text);
+    // Independent of the snapshot texts: the engine's own linear IP and Palermo value, printed the usual way
+    // (IP in exponent notation with one decimal, Palermo with two decimals and a true minus sign; common practice,
+    // no source).
+    const a = (result.approaches as { impactProbability: { linear: number }; palermo: number; distanceKm: number }[])[0];
+    expect(a.impactProbability.linear).toBeGreaterThan(0);
+    expect(t).toContain(a.impactProbability.linear.toExponential(1).replace('e+', 'e'));
+    expect(t).toContain(`−${Math.abs(a.palermo).toFixed(2)}`);
+    expect(t).toContain(`${Math.round(a.distanceKm).toLocaleString('en-US')} km`);
+  });
+
+  it('has the title block, the risk table, the plots, the sign-off and the standing caution', () => {
+    const t = text(file);
+    expect(t).toContain(version.officeName.toUpperCase());
+    expect(t).toContain(version.title);
+    expect(t).toContain(`Bulletin ${version.number}, version ${version.version}`);
+    expect(t).toContain('Approved 2026-11-30 14:05 UTC');
+    expect(t).toContain(version.distributionMarking);
+    expect(t).toContain(STANDING_CAUTION);
+    // risk table header and the run it comes from
+    expect(t).toContain('Encounters of X26-KAPPA (run 41');
+    // the row of the run's one approach, read with the layout kept (columns side by side)
+    const a = (result.approaches as { impactProbability: { linear: number }; palermo: number; torino: number; distanceKm: number; vInfinityKmS: number }[])[0];
+    const layout = run('pdftotext', ['-layout', '-enc', 'UTF-8', '-f', '1', '-l', '1', file, '-']);
+    const row = new RegExp(
+      `Earth\\s+2030-02-12\\s+${Math.round(a.distanceKm).toLocaleString('en-US')} km\\s+${a.vInfinityKmS.toFixed(2)} km/s\\s+` +
+        `${a.impactProbability.linear.toExponential(1)}\\s+−${Math.abs(a.palermo).toFixed(2)}\\s+${a.torino}\\s+\\d+ Mt`,
+    );
+    expect(layout).toMatch(/Body\s+Encounter\s+Nominal\s+V-infinity\s+Impact probability\s+Palermo\s+Torino\s+Impact/);
+    expect(layout).toMatch(row);
+    // plots drawn from the shared SVG renderers (their titles and legends are vector text in the PDF)
+    expect(t).toContain('b-plane: X26-KAPPA');
+    expect(t).toContain('capture disk');
+    expect(t).toContain('Distance from Earth');
+    // sign-off
+    expect(t).toContain(`Approved by ${version.signOff.reviewer.name} on 2026-11-30 14:05 UTC`);
+    expect(t).toContain(version.signOff.comment!);
+    for (const c of version.signOff.confirmedFigures) expect(t).toContain(`[${c.index + 1}]`);
+  });
+
+  it('has a footer with the version hash and "page x of y" on every page', async () => {
+    const long = (await bulletinVersionFixture({ longBody: true })).version;
+    const f = save('long.pdf', await renderBulletinPdf(long));
+    const n = pages(f);
+    expect(n).toBeGreaterThanOrEqual(4);
+    for (let i = 1; i <= n; i++) {
+      const t = text(f, i);
+      expect(t).toContain(`page ${i} of ${n}`);
+      expect(t).toContain(`Version SHA-256 ${long.sha256}`);
+    }
+  }, 30_000);
+
+  it('sets symbols Merriweather lacks in fallback fonts (no "?" or empty boxes): ≈ ≤ σ ∞', () => {
+    const t = text(file);
+    // The fixture's sentence, as written in the document.
+    expect(t).toContain('p ≈ 2e-7, well ≤ 1e-6; the 1σ ellipse is wide and the chance is not ∞-small');
+    // The SVG legend's sigma went through the same fallback.
+    expect(t).toContain('linear 1σ');
+  });
+});
+
+describe('fonts', () => {
+  it('embeds Merriweather (and the fallbacks it needed); every font is embedded', () => {
+    const lines = run('pdffonts', [file]).split('\n').slice(2).filter((l) => l.trim() !== '');
+    expect(lines.some((l) => /\+Merriweather-Regular\s/.test(l))).toBe(true);
+    expect(lines.some((l) => /\+Merriweather-Bold\s/.test(l))).toBe(true);
+    expect(lines.some((l) => /\+NotoSansMath-Regular\s/.test(l))).toBe(true); // ≈ ≤ ∞
+    expect(lines.some((l) => /\+NotoSerif-Regular\s/.test(l))).toBe(true); // σ ζ ξ
+    // columns: name type encoding emb sub uni; "emb" must be yes everywhere (no font left to the viewer)
+    for (const l of lines) expect(l).toMatch(/\s+yes\s+yes\s+yes\s+\d+\s+\d+\s*$/);
+  });
+
+  it('chooses the first font of the chain that has the glyph', () => {
+    const fonts = new FontSet(new PDFDocument());
+    expect(fonts.split('regular', 'a ± b')).toEqual([{ font: 'mw-latin-regular', text: 'a ± b' }]);
+    expect(fonts.split('regular', '1σ')).toEqual([
+      { font: 'mw-latin-regular', text: '1' },
+      { font: 'ns-greek-regular', text: 'σ' },
+    ]);
+    expect(fonts.split('bold', 'p ≈ 2, x ≤ ∞').map((p) => p.font)).toEqual([
+      'mw-latin-bold',
+      'nsm-regular',
+      'mw-latin-bold',
+      'nsm-regular',
+    ]);
+    // A character no font has becomes "?" rather than an empty box (U+E000 is a private-use code point).
+    expect(fonts.split('regular', 'a\uE000')).toEqual([{ font: 'mw-latin-regular', text: 'a?' }]);
+  });
+});
+
+describe('byte stability', () => {
+  it('renders the same version to the same bytes', async () => {
+    const again = await renderBulletinPdf(structuredClone(version));
+    expect(again.equals(pdf)).toBe(true);
+  });
+
+  it('uses the approval time, not the current time, and pins the trailer ID to the version hash', () => {
+    const info = run('pdfinfo', ['-isodates', file]);
+    expect(info).toMatch(/CreationDate:\s+2026-11-30T14:05:09Z/);
+    expect(info).toMatch(/ModDate:\s+2026-11-30T14:05:09Z/);
+    const trailer = pdf.subarray(pdf.lastIndexOf('trailer')).toString('latin1');
+    const id = version.sha256.slice(0, 32);
+    expect(trailer.toLowerCase()).toContain(`/id [<${id}> <${id}>]`);
+  });
+
+  it('gives different bytes for a different version', async () => {
+    const other = await renderBulletinPdf({ ...structuredClone(version), sha256: 'f'.repeat(64), version: 3 });
+    expect(other.equals(pdf)).toBe(false);
+  });
+});
+
+describe('rendered pages (pdftoppm)', () => {
+  it('rasterises every page without errors and no page is blank', () => {
+    const n = pages(file);
+    run('pdftoppm', ['-r', '40', '-png', file, path.join(dir, 'page')]);
+    const pngs = readdirSync(dir).filter((f) => /^page-\d+\.png$/.test(f));
+    expect(pngs.length).toBe(n);
+    // A blank A4 page at 40 dpi compresses to well under 1 kB; a page with text and rules does not.
+    for (const p of pngs) expect(statSync(path.join(dir, p)).size).toBeGreaterThan(3000);
+  });
+});
+
+describe('degraded inputs', () => {
+  it('says so in the PDF when a run result was not frozen with the version, and still renders', async () => {
+    const v = { ...structuredClone(version), runs: {} };
+    const f = save('norun.pdf', await renderBulletinPdf(v));
+    const t = text(f);
+    expect(t).toContain('the result of run 41 was not frozen with this version');
+    // linked figures still come from their snapshots
+    for (const fig of v.figures) expect(t).toContain(fig.value.text);
+  });
+
+  it('refuses a version without a proper hash or approval time', async () => {
+    await expect(renderBulletinPdf({ ...version, sha256: 'abc' })).rejects.toThrow(/sha256/);
+    await expect(renderBulletinPdf({ ...version, signOff: { ...version.signOff, approvedAt: 'never' } })).rejects.toThrow(/approvedAt/);
+  });
+});
