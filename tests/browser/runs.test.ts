@@ -74,11 +74,19 @@ describe('assessment runs in the browser', () => {
     expect(await page.getByText('Input SHA-256').count()).toBe(1);
     await screenshot(page, 'analyst-run-done');
 
-    // back on the object page: the run is listed as done
+    // run again: the same request becomes a new run with its own page
+    const firstUrl = page.url();
+    await page.getByRole('button', { name: 'Run again' }).click();
+    await page.waitForURL((u) => /\/runs\/\d+$/.test(u.pathname) && u.href !== firstUrl);
+    await page.getByTestId('run-status').first().waitFor();
+    await page.getByText('linear, lov to 2035-01-01T00:00:00Z', { exact: false }).waitFor();
+
+    // back on the object page: the runs are listed, the first one done
     await page.getByRole('link', { name: '← HSO-26-N4' }).click();
-    const row = page.locator('[data-testid^="run-row-"]').first();
-    await row.waitFor();
-    expect(await row.textContent()).toContain('Done');
+    const rows = page.locator('[data-testid^="run-row-"]');
+    await rows.first().waitFor();
+    expect(await rows.count()).toBe(2);
+    expect(await rows.last().textContent()).toContain('Done');
     expect(errors).toEqual([]);
     await context.close();
   });

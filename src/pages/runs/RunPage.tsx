@@ -1,8 +1,8 @@
 // One assessment run: live status and progress (polled every second while queued or running), cancel, the
 // failure reason, provenance, and when done the encounter table from the engine's JSON (with a JSON download).
-import { Link, useParams } from 'react-router';
+import { Link, useNavigate, useParams } from 'react-router';
 import type { Run } from '../../../shared/schemas/runs';
-import { isFinished, useCancelRun, useRun } from '../../api/runs';
+import { isFinished, useCancelRun, useCreateRun, useRun } from '../../api/runs';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
 import { formatNumber, formatUtc } from '../objects/format';
@@ -130,6 +130,30 @@ const PROVENANCE_KEYS: [string, string][] = [
   ['attempt', 'Attempt'],
 ];
 
+/** Queue the same request again (same solution version, window, methods, clones, seed, bodies): a reviewer's check. */
+function RunAgainButton({ run }: { run: Run }) {
+  const navigate = useNavigate();
+  const create = useCreateRun();
+  const o = run.options;
+  return (
+    <>
+      <Button
+        variant="secondary"
+        busy={create.isPending}
+        onClick={() =>
+          create.mutate(
+            { solutionId: run.solutionId, until: o.until, methods: o.methods, clones: o.clones, seed: o.seed, bodies: o.bodies, maxAu: o.maxAu },
+            { onSuccess: (next) => navigate(`/runs/${next.id}`) },
+          )
+        }
+      >
+        Run again
+      </Button>
+      {create.isError && <Notice tone="error">{errorMessage(create.error)}</Notice>}
+    </>
+  );
+}
+
 export function RunPage() {
   const id = Number(useParams().id);
   const ability = useAppAbility();
@@ -159,8 +183,11 @@ export function RunPage() {
             <Button variant="danger-outline" busy={cancel.isPending} onClick={() => cancel.mutate()}>
               Cancel the run
             </Button>
-          ) : result ? (
-            <Button variant="secondary" onClick={() => downloadJson(run)}>Download JSON</Button>
+          ) : isFinished(run.status) ? (
+            <>
+              {result && <Button variant="secondary" onClick={() => downloadJson(run)}>Download JSON</Button>}
+              {ability.can('create', 'Run') && <RunAgainButton run={run} />}
+            </>
           ) : undefined
         }
       />
