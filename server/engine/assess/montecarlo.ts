@@ -33,6 +33,8 @@ export type McOptions = AssessOptions & {
   batchSize?: number;
   fixedIterations?: number;
   window?: WindowOptions;
+  /** A long-lived pool to run on (not destroyed here); otherwise a pool of opts.workers threads is made for the run. */
+  pool?: McPool;
 };
 
 export type McRunResult = Omit<McResult, 'windows'> & {
@@ -124,7 +126,7 @@ export async function runMonteCarlo(solution: OrbitSolution, opts: McOptions, ho
 
   const tasks: McTask[] = [];
   for (let k = 0; k < N; k += batchSize) tasks.push({ ...template, cloneStart: k, cloneEnd: Math.min(N, k + batchSize) });
-  const workers = opts.workers ?? defaultWorkerCount();
+  const workers = opts.pool ? opts.pool.threads : (opts.workers ?? defaultWorkerCount());
   const t0 = performance.now();
   let done = 0;
   const progress = (): McProgress => {
@@ -145,7 +147,7 @@ export async function runMonteCarlo(solution: OrbitSolution, opts: McOptions, ho
       hooks.onProgress?.(progress());
     }
   } else {
-    const pool = new McPool(workers);
+    const pool = opts.pool ?? new McPool(workers);
     const inner = new AbortController();
     const onAbort = () => inner.abort();
     signal?.addEventListener('abort', onAbort, { once: true });
@@ -164,7 +166,7 @@ export async function runMonteCarlo(solution: OrbitSolution, opts: McOptions, ho
       throw err;
     } finally {
       signal?.removeEventListener('abort', onAbort);
-      await pool.destroy();
+      if (!opts.pool) await pool.destroy();
     }
     if (signal?.aborted) throw new McAbortError();
   }
