@@ -5,7 +5,7 @@
  * independent PDF reader, so the checks do not trust pdfkit's own view of what it wrote.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -139,6 +139,15 @@ describe('byte stability', () => {
     const again = await renderBulletinPdf(structuredClone(version));
     expect(again.equals(pdf)).toBe(true);
   });
+
+  it('renders the same bytes in another process, time zone and locale', () => {
+    const out = path.join(dir, 'child.pdf');
+    execFileSync(process.execPath, ['--import', 'tsx', path.join(__dirname, 'bulletinPdfFixture.ts'), out], {
+      env: { ...process.env, TZ: 'Pacific/Chatham', LANG: 'de_DE.UTF-8', LC_ALL: 'de_DE.UTF-8' },
+      stdio: 'pipe',
+    });
+    expect(readFileSync(out).equals(pdf)).toBe(true);
+  }, 30_000);
 
   it('uses the approval time, not the current time, and pins the trailer ID to the version hash', () => {
     const info = run('pdfinfo', ['-isodates', file]);

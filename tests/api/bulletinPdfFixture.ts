@@ -161,3 +161,12 @@ export async function bulletinVersionFixture(opts: { longBody?: boolean } = {}):
   };
   return { version, result };
 }
+
+// Run as a script (`node --import tsx tests/api/bulletinPdfFixture.ts OUT.pdf`): render the fixture in a separate
+// process, so a test can compare bytes across processes, time zones and locales.
+if (process.argv[1] && /bulletinPdfFixture\.ts$/.test(process.argv[1]) && process.argv[2]) {
+  const { renderBulletinPdf } = await import('../../server/services/pdf');
+  const { writeFileSync } = await import('node:fs');
+  const { version } = await bulletinVersionFixture();
+  writeFileSync(process.argv[2], await renderBulletinPdf(version));
+}
