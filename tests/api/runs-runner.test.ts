@@ -113,7 +113,7 @@ describe('demo runs', () => {
       const ids = queueDemoRuns(demo.db, demo.services.runs, analystEmail);
       expect(ids.length).toBe(3);
       expect(queueDemoRuns(demo.db, demo.services.runs, analystEmail)).toEqual([]); // a restart queues nothing new
-      await expect.poll(() => ids.map((id) => demo.services.runs.get(id).status), { timeout: 60_000, interval: 200 }).toEqual(['done', 'done', 'done']);
+      await expect.poll(() => ids.map((id) => demo.services.runs.get(id).status), { timeout: 120_000, interval: 200 }).toEqual(['done', 'done', 'done']);
       // the asteroid's run finds its designed 2034 encounter (server/db/demo/make-nea.ts) and fills the summary
       const nea = demo.services.objects.list({ page: 1, pageSize: 10, sort: 'designation', q: 'HSO-26-N4' }).items[0];
       expect(nea.nextCloseApproachAt?.slice(0, 10)).toBe('2034-09-17');
@@ -123,5 +123,5 @@ describe('demo runs', () => {
     } finally {
       await demo.close();
     }
-  });
+  }, 150_000);
 });
