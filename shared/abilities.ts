@@ -19,6 +19,8 @@ export const ACTIONS = [
   'approve',
   'publish',
   'acknowledge',
+  // bulletins: take a workflow action (which one, and by whom, is decided by shared/bulletins/workflow.ts)
+  'transition',
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
@@ -59,10 +61,13 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   const { can, build } = new AbilityBuilder<AppAbility>(createMongoAbility);
   if (!user) return build();
 
-  // Everyone signed in: their own account, the health check, bulletins and releases.
+  // Everyone signed in: their own account, the health check and releases.
   can(['read', 'update'], 'Account', { id: user.id });
   can('read', 'Health');
-  can('read', ['Bulletin', 'Release']);
+  can('read', 'Release');
+  // Bulletins (issue 6): the office reads drafts, versions and who received and acknowledged them; liaisons only
+  // see what was sent to them (their briefings). Workflow actions are refined per role by shared/bulletins/workflow.ts.
+  if (user.role !== 'liaison') can('read', ['Bulletin', 'Distribution']);
   // Tracked objects, orbit solutions and assessment runs (issue 5): the analysis side of the office only;
   // communications staff and liaisons see published summaries, never the raw solutions or runs.
   if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['TrackedObject', 'Solution', 'Run']);
@@ -71,6 +76,8 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
     case 'admin':
       can('manage', 'User');
       can('manage', ['StakeholderList', 'Observatory']);
+      // Withdraws a bulletin (workflow table).
+      can('transition', 'Bulletin');
       // Operations: may cancel a stuck or runaway run (DELETE /api/runs/:id), never start one.
       can('delete', 'Run');
       break;
@@ -79,20 +86,21 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
       // Runs: start them, and cancel any run of the office (not only their own: the queue is shared and one
       // analyst must be able to stop a colleague's mistaken run).
       can(['create', 'run', 'delete'], 'Run');
-      can(['create', 'update'], 'Bulletin');
+      can(['create', 'update', 'transition'], 'Bulletin');
       can('read', 'Observatory');
       break;
     case 'reviewer':
-      can(['review', 'approve'], 'Bulletin');
+      can(['review', 'approve', 'transition'], 'Bulletin');
       // Reviewers re-run an assessment to check it, but do not cancel other people's runs.
       can(['create', 'review'], 'Run');
       can('read', 'Observatory');
       break;
     case 'communications':
       can(['create', 'update', 'publish'], 'Release');
-      can('publish', 'Bulletin');
+      can(['publish', 'transition'], 'Bulletin');
       can('read', ['StakeholderList', 'Distribution']);
       can(['create', 'update'], 'Distribution');
+      can(['create', 'update'], 'StakeholderList');
       break;
     case 'liaison':
       can(['read', 'acknowledge'], 'Briefing');

@@ -51,6 +51,29 @@ export const ROUTES = [
   { method: 'POST', path: '/api/runs', action: 'create', subject: 'Run', summary: 'Queue an assessment run of a solution version (202 with the run)' },
   { method: 'GET', path: '/api/runs/:id', action: 'read', subject: 'Run', summary: 'One run: status, progress, provenance, and the engine result when done' },
   { method: 'DELETE', path: '/api/runs/:id', action: 'delete', subject: 'Run', summary: 'Cancel a queued or running run' },
+
+  { method: 'GET', path: '/api/bulletins', action: 'read', subject: 'Bulletin', summary: 'Bulletins, most recently changed first (?objectId=&state=)' },
+  { method: 'POST', path: '/api/bulletins', action: 'create', subject: 'Bulletin', summary: 'Start a bulletin about an object (201 with the draft)' },
+  { method: 'GET', path: '/api/bulletins/:id', action: 'read', subject: 'Bulletin', summary: 'The draft with its revision, figures (value, staleness, latest value), allowed actions and history' },
+  { method: 'PUT', path: '/api/bulletins/:id', action: 'update', subject: 'Bulletin', summary: 'Save the draft; carries the revision it edits (409 with the current copy when stale)' },
+  { method: 'POST', path: '/api/bulletins/:id/transitions', action: 'transition', subject: 'Bulletin', summary: 'Workflow action {action, comment, confirmedFigures, staleReason} (shared/bulletins/workflow.ts)' },
+  { method: 'GET', path: '/api/bulletins/:id/versions', action: 'read', subject: 'Bulletin', summary: 'Locked versions with status, reviewer and hash' },
+  { method: 'GET', path: '/api/bulletins/:id/versions/:version', action: 'read', subject: 'Bulletin', summary: 'One locked version with its differences from an earlier one (?against=)' },
+  { method: 'GET', path: '/api/bulletins/:id/versions/:version/pdf', action: 'read', subject: 'Bulletin', summary: 'The PDF of a locked version (application/pdf)' },
+
+  { method: 'GET', path: '/api/stakeholder-lists', action: 'read', subject: 'StakeholderList', summary: 'Stakeholder lists with their members' },
+  { method: 'POST', path: '/api/stakeholder-lists', action: 'create', subject: 'StakeholderList', summary: 'Create a list (users and outside addresses)' },
+  { method: 'GET', path: '/api/stakeholder-lists/:id', action: 'read', subject: 'StakeholderList', summary: 'One list' },
+  { method: 'PUT', path: '/api/stakeholder-lists/:id', action: 'update', subject: 'StakeholderList', summary: 'Replace name, kind, description and members' },
+
+  { method: 'GET', path: '/api/distributions', action: 'read', subject: 'Distribution', summary: 'Distributions with per-recipient delivery and acknowledgement (?bulletinId=)' },
+  { method: 'POST', path: '/api/distributions', action: 'create', subject: 'Distribution', summary: 'Send a locked version to a stakeholder list: PDF attached, HTML and text summary (201)' },
+  { method: 'GET', path: '/api/distributions/:id', action: 'read', subject: 'Distribution', summary: 'One distribution with per-recipient status' },
+
+  { method: 'GET', path: '/api/briefings', action: 'read', subject: 'Briefing', summary: 'The signed-in user\'s briefing inbox' },
+  { method: 'GET', path: '/api/briefings/:id', action: 'read', subject: 'Briefing', summary: 'One briefing: the version sent, its figures and summary' },
+  { method: 'GET', path: '/api/briefings/:id/pdf', action: 'read', subject: 'Briefing', summary: 'The PDF of the briefed version' },
+  { method: 'POST', path: '/api/briefings/:id/acknowledge', action: 'acknowledge', subject: 'Briefing', summary: 'Acknowledge receipt {comment?} (idempotent)' },
 ] as const satisfies readonly RouteDef[];
 
 interface CompiledRoute {

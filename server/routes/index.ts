@@ -4,6 +4,8 @@ import type { Router } from 'express';
 import type { Csrf } from '../middleware/csrf';
 import type { Services } from '../services';
 import { accountRouter } from './account';
+import { bulletinsRouter } from './bulletins';
+import { distributionsRouter } from './distributions';
 import { healthRouter } from './health';
 import { invitationsRouter } from './invitations';
 import { objectsRouter } from './objects';
@@ -12,5 +14,5 @@ import { sessionRouter } from './session';
 import { usersRouter } from './users';
 
 export function apiRouters(services: Services, csrf: Csrf): Router[] {
-  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services)];
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services), bulletinsRouter(services), distributionsRouter(services)];
 }

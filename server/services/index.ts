@@ -3,6 +3,8 @@ import type { Transporter } from 'nodemailer';
 import type { Config } from '../config';
 import type { Db } from '../db/client';
 import { createAuthService } from './auth';
+import { createDistributionService } from './bulletins/distribution';
+import { createBulletinService } from './bulletins/service';
 import { createInvitationService } from './invitations';
 import { createMailService } from './mail';
 import { createObjectService } from './objects';
@@ -24,6 +26,8 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const users = createUserService(db, sessionStore, invitations);
   const objects = createObjectService(db);
   const runs = createRunService(db);
-  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs };
+  const bulletins = createBulletinService(db);
+  const distributions = createDistributionService(db, bulletins, mail, config.publicUrl);
+  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs, bulletins, distributions };
 }
 export type Services = ReturnType<typeof createServices>;
