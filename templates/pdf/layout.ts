@@ -63,7 +63,16 @@ export const SPACING = {
   lineGapPt: 1.5,
 };
 
-/** Plots: width as a share of the text width, and the height/width ratio of the drawing. */
-export const PLOT = { widthShare: 0.8, aspect: 0.72 };
+/**
+ * Plots: width as a share of the text width, the height/width ratio of the drawing, and the width in SVG pixels the
+ * shared renderers lay the plot out at before it is scaled into the page (wider than their default 640 px: the SVG asks for Helvetica, Merriweather is wider, and the legends must fit).
+ */
+export const PLOT = {
+  widthShare: 1,
+  aspect: 0.6,
+  svgWidthPx: 760,
+  /** Most Monte Carlo b-plane points drawn (hits always kept; the legend says how many of how many). */
+  maxMonteCarloPoints: 2000,
+};
 
 export const PRODUCER = 'Tocsin bulletin renderer';

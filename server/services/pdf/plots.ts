@@ -8,6 +8,7 @@ import SVGtoPDF from 'svg-to-pdfkit';
 import { FIGURE_MATCH_DAYS } from '../../../shared/bulletins/document';
 import { bPlaneSvg, distanceSvg } from '../../../shared/plots';
 import { safeParseAssessment } from '../../../shared/schemas/assessment';
+import { PLOT } from '../../../templates/pdf/layout';
 import { primaryFont, styleOf, type FontSet } from './fonts';
 
 export type PlotRequest = { kind: 'bplane' | 'distance'; result: unknown; body: string; epochTdbJd: number };
@@ -57,12 +58,13 @@ export function drawPlot(doc: PDFKit.PDFDocument, req: PlotRequest, box: PlotBox
   const result = parsed.value;
   const i = approachIndexOf(result.approaches, req.body, req.epochTdbJd);
   if (i < 0) return { ok: false, reason: `the run has no approach to ${req.body} near the plot's epoch` };
-  // Pixel size of the drawing: the box in points at 96 px per inch (svg-to-pdfkit's default px -> pt scale).
-  const width = Math.round((box.width * 96) / 72);
-  const height = Math.round((box.height * 96) / 72);
+  // The SVG is laid out at the renderers' own width (PLOT.svgWidthPx: legends and labels are sized for it) and
+  // scaled into the box; the height keeps the box's proportions.
+  const width = PLOT.svgWidthPx;
+  const height = Math.round((width * box.height) / box.width);
   let svg: string;
   try {
-    svg = req.kind === 'bplane' ? bPlaneSvg(result, i, { width, height }) : distanceSvg(result, i, { width, height });
+    svg = req.kind === 'bplane' ? bPlaneSvg(result, i, { width, height, maxPoints: PLOT.maxMonteCarloPoints }) : distanceSvg(result, i, { width, height });
   } catch (err) {
     return { ok: false, reason: `the plot could not be drawn (${(err as Error).message})` };
   }
