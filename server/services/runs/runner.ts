@@ -165,8 +165,9 @@ export function createRunner(db: Db, runs: RunService, opts: RunnerOptions = {})
       solutionVersion: row.solutionVersion,
       inputSha256: row.inputSha256,
       methods: options.methods,
-      clones: options.clones,
-      seed: options.seed,
+      // as the engine reports them: null when no Monte Carlo runs (the requested values stay in the options)
+      clones: options.methods.includes('mc') ? options.clones : null,
+      seed: options.methods.includes('mc') ? options.seed : null,
       until: options.until,
       untilTdbDays: options.untilTdbDays,
       bodies: options.bodies,
