@@ -105,6 +105,16 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
   });
 });
 
+describe('images', () => {
+  it('embeds a data-URL image from the document and names an external one instead of fetching it', () => {
+    // pdfimages -list: header lines, then one line per image with its pixel size
+    const list = run('pdfimages', ['-list', file]).split('\n').slice(2).filter((l) => l.trim() !== '');
+    expect(list.length).toBe(1);
+    expect(list[0]).toMatch(/^\s*\d+\s+\d+\s+image\s+48\s+24\s+rgb\s/);
+    expect(text(file)).toContain('[Remote chart: external image, not embedded]');
+  });
+});
+
 describe('fonts', () => {
   it('embeds Merriweather (and the fallbacks it needed); every font is embedded', () => {
     const lines = run('pdffonts', [file]).split('\n').slice(2).filter((l) => l.trim() !== '');

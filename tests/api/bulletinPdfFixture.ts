@@ -5,6 +5,7 @@
  * Figure snapshots come from shared/bulletins/figures.ts extractFigure, as the bulletin service freezes them.
  */
 import { createHash } from 'node:crypto';
+import { crc32, deflateSync } from 'node:zlib';
 import { assess } from '../../server/engine/assess';
 import type { BulletinVersionForPdf } from '../../server/services/pdf';
 import type { DocNode, FigureQuantity, LinkedFigureAttrs } from '../../shared/bulletins/document';
@@ -33,6 +34,35 @@ export async function engineResult(): Promise<Record<string, unknown>> {
   const prov = result.provenance as Record<string, unknown>;
   delete prov.timings;
   return JSON.parse(JSON.stringify(result)) as Record<string, unknown>;
+}
+
+/** A small PNG (48 x 24 px, RGB gradient) built here, for the image node (PNG spec: signature, IHDR, IDAT, IEND). */
+export function gradientPng(): Buffer {
+  const w = 48, h = 24;
+  const raw = Buffer.alloc((w * 3 + 1) * h);
+  for (let y = 0; y < h; y++) {
+    raw[y * (w * 3 + 1)] = 0; // filter: none
+    for (let x = 0; x < w; x++) {
+      const o = y * (w * 3 + 1) + 1 + x * 3;
+      raw[o] = Math.round((255 * x) / (w - 1));
+      raw[o + 1] = Math.round((255 * y) / (h - 1));
+      raw[o + 2] = 128;
+    }
+  }
+  const chunk = (type: string, data: Buffer) => {
+    const len = Buffer.alloc(4);
+    len.writeUInt32BE(data.length);
+    const td = Buffer.concat([Buffer.from(type, 'latin1'), data]);
+    const crc = Buffer.alloc(4);
+    crc.writeUInt32BE(crc32(td));
+    return Buffer.concat([len, td, crc]);
+  };
+  const ihdr = Buffer.alloc(13);
+  ihdr.writeUInt32BE(w, 0);
+  ihdr.writeUInt32BE(h, 4);
+  ihdr[8] = 8; // bit depth
+  ihdr[9] = 2; // colour type: RGB
+  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', deflateSync(raw)), chunk('IEND', Buffer.alloc(0))]);
 }
 
 const t = (text: string, marks: string[] = []): DocNode => ({ type: 'text', text, ...(marks.length ? { marks: marks.map((m) => ({ type: m as 'bold' })) } : {}) });
@@ -117,6 +147,8 @@ export async function bulletinVersionFixture(opts: { longBody?: boolean } = {}):
     { type: 'riskTable', attrs: { runId: RUN_ID } },
     { type: 'plot', attrs: { runId: RUN_ID, kind: 'bplane', body: approach.body, epochTdbJd: approach.epochTdbJd } },
     { type: 'plot', attrs: { runId: RUN_ID, kind: 'distance', body: approach.body, epochTdbJd: approach.epochTdbJd } },
+    { type: 'image', attrs: { src: `data:image/png;base64,${gradientPng().toString('base64')}`, alt: 'Exercise finder chart' } },
+    { type: 'image', attrs: { src: 'https://example.org/chart.png', alt: 'Remote chart' } },
     { type: 'heading', attrs: { level: 3 }, content: [t('What would change the assessment')] },
     p(t('Observations in the coming weeks will shrink the uncertainty; the office will issue a new version when they do.')),
   ];

@@ -207,9 +207,13 @@ function image(ctx: Ctx, node: PdfDocNode, box: Box): void {
       const w = Math.min(box.width, img.width);
       const h = (img.height / img.width) * w;
       const hh = Math.min(h, 320);
-      ensureSpace(doc, hh);
+      ensureSpace(doc, hh + 16);
       doc.image(buf, box.x + (box.width - (w * hh) / h) / 2, doc.y, { fit: [w, hh] });
-      doc.y += hh + SPACING.blockGapPt;
+      doc.y += hh + 3;
+      if (typeof node.attrs?.alt === 'string' && node.attrs.alt) {
+        writeParagraph(doc, ctx.fonts, [{ text: node.attrs.alt, italic: true, color: COLOR.muted }], box, { size: FONT_SIZE.plotCaption, align: 'center' });
+      }
+      doc.y += SPACING.blockGapPt;
       return;
     } catch {
       // fall through to the alt text
