@@ -3,4 +3,4 @@ export { bPlaneSvg, bPlaneData, bPlaneBounds, bPlaneLayout, thinPoints, BODY_RAD
 export type { BPlaneSvgOptions, BPlaneData, BPlaneBounds, BPlaneLayout, BPlaneUnit } from './bplane';
 export { distanceSvg, distanceSeries, hyperbolaDistanceKm, BODY_GM_KM3_S2 } from './distance';
 export type { DistanceSvgOptions, DistanceSeries, DistanceSeriesOptions } from './distance';
-export { covarianceEllipse, ellipsePoints, niceTicks } from './svg';
+export { covarianceEllipse, ellipsePoints, niceTicks, tickLabel, PLOT_COLORS } from './svg';

@@ -1,32 +1,14 @@
 // One assessment run: live status and progress (polled every second while queued or running), cancel, the
-// failure reason, provenance, and when done the encounter table from the engine's JSON (with a JSON download).
+// failure reason, provenance, and when done the results (src/components/results: encounter table, plots,
+// consequence ranges, exports) from the engine's JSON (with a JSON download).
 import { Link, useNavigate, useParams } from 'react-router';
 import type { Run } from '../../../shared/schemas/runs';
 import { isFinished, useCancelRun, useCreateRun, useRun } from '../../api/runs';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
-import { formatNumber, formatUtc } from '../objects/format';
+import { formatUtc } from '../objects/format';
 import { RunStatusBadge, progressText } from './RunStatus';
-
-/** Mean Earth-Moon distance, km (lunar distance as used for close-approach tables; common practice, no source). */
-const LUNAR_DISTANCE_KM = 384_400;
-
-type Approach = {
-  body: string;
-  utc: string;
-  epochTdbJd: number;
-  distanceKm: number;
-  distanceSigmaKm: number | null;
-  distanceRangeKm: { threeSigma: [number, number] } | null;
-  relativeSpeedKmS: number;
-  vInfinityKmS: number | null;
-  impactProbability: { linear: number | null; monteCarlo: { estimate: number | null; hits: number | null; samples: number | null }; lov: number | null };
-  energyMt: { nominal: number | null; low: number | null; high: number | null };
-  palermo: number | null;
-  torino: number | null;
-  ratingProbabilitySource: string | null;
-  methodFlags?: string[];
-};
+import { RunResults } from '../../components/results/RunResults';
 
 function ProgressBar({ run }: { run: Run }) {
   const { done, total } = run.progress;
@@ -44,64 +26,6 @@ function ProgressBar({ run }: { run: Run }) {
         <div className="h-full bg-accent-700 transition-[width]" style={{ width: `${fraction * 100}%` }} />
       </div>
       <p className="mt-1 text-sm text-ink-soft" aria-live="polite">{run.status === 'running' ? progressText(run) : run.status === 'queued' ? 'Waiting for the runner…' : ''}</p>
-    </div>
-  );
-}
-
-function ip(a: Approach): string {
-  const p = a.impactProbability;
-  const parts: string[] = [];
-  if (p.linear !== null) parts.push(`linear ${formatNumber(p.linear, 3)}`);
-  if (p.lov !== null) parts.push(`LOV ${formatNumber(p.lov, 3)}`);
-  if (p.monteCarlo.samples !== null) parts.push(`MC ${formatNumber(p.monteCarlo.estimate, 3)} (${p.monteCarlo.hits}/${p.monteCarlo.samples})`);
-  return parts.length ? parts.join(' · ') : '—';
-}
-
-function EncounterTable({ result }: { result: Record<string, unknown> }) {
-  const approaches = (result.approaches ?? []) as Approach[];
-  if (approaches.length === 0) return <p className="text-ink-soft">No close approach within the reporting distance in this window.</p>;
-  return (
-    <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-      <table className="w-full min-w-[64rem] text-left text-sm" data-testid="encounter-table">
-        <thead className="bg-accent-50">
-          <tr>
-            <th scope="col" className="px-3 py-2">Date (UTC)</th>
-            <th scope="col" className="px-3 py-2">TDB (JD)</th>
-            <th scope="col" className="px-3 py-2">Body</th>
-            <th scope="col" className="px-3 py-2">Nominal distance</th>
-            <th scope="col" className="px-3 py-2">3σ range (km)</th>
-            <th scope="col" className="px-3 py-2">Rel. speed / v∞ (km/s)</th>
-            <th scope="col" className="px-3 py-2">Impact probability</th>
-            <th scope="col" className="px-3 py-2">Palermo</th>
-            <th scope="col" className="px-3 py-2">Torino</th>
-            <th scope="col" className="px-3 py-2">Energy (Mt)</th>
-          </tr>
-        </thead>
-        <tbody>
-          {approaches.map((a, i) => (
-            <tr key={i} className="border-t border-rule align-top tabular-nums">
-              <td className="px-3 py-2">{formatUtc(a.utc)}</td>
-              <td className="px-3 py-2">{a.epochTdbJd.toFixed(5)}</td>
-              <td className="px-3 py-2 capitalize">{a.body}</td>
-              <td className="px-3 py-2">
-                {formatNumber(a.distanceKm, 6)} km
-                <br />
-                <span className="text-ink-soft">{formatNumber(a.distanceKm / LUNAR_DISTANCE_KM, 4)} LD</span>
-              </td>
-              <td className="px-3 py-2">{a.distanceRangeKm ? `${formatNumber(a.distanceRangeKm.threeSigma[0], 4)} – ${formatNumber(a.distanceRangeKm.threeSigma[1], 4)}` : '—'}</td>
-              <td className="px-3 py-2">{formatNumber(a.relativeSpeedKmS, 4)} / {formatNumber(a.vInfinityKmS, 4)}</td>
-              <td className="px-3 py-2">
-                {ip(a)}
-                {a.ratingProbabilitySource && <><br /><span className="text-ink-soft">rated with {a.ratingProbabilitySource}</span></>}
-                {a.methodFlags && a.methodFlags.length > 0 && <><br /><span className="text-signal-700">{a.methodFlags.join('; ')}</span></>}
-              </td>
-              <td className="px-3 py-2">{a.palermo === null ? '—' : a.palermo.toFixed(2)}</td>
-              <td className="px-3 py-2">{a.torino ?? '—'}</td>
-              <td className="px-3 py-2">{a.energyMt.nominal === null ? '—' : `${formatNumber(a.energyMt.nominal, 3)} (${formatNumber(a.energyMt.low, 2)} – ${formatNumber(a.energyMt.high, 2)})`}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
     </div>
   );
 }
@@ -205,15 +129,7 @@ export function RunPage() {
           {cancel.isError && <Notice tone="error" className="mt-3">{errorMessage(cancel.error)}</Notice>}
         </Card>
 
-        {result && (
-          <section aria-labelledby="encounters-heading" className="space-y-3">
-            <h2 id="encounters-heading" className="text-lg font-semibold">Close approaches</h2>
-            <p className="text-sm text-ink-soft">
-              Cumulative Palermo {typeof result.palermoCumulative === 'number' ? result.palermoCumulative.toFixed(2) : '—'} · maximum Torino {String(result.torinoMax ?? '—')}
-            </p>
-            <EncounterTable result={result} />
-          </section>
-        )}
+        {result && <RunResults run={run} />}
 
         {run.provenance && (
           <section aria-labelledby="provenance-heading">
