@@ -13,6 +13,11 @@ import { ObjectPage } from './pages/objects/ObjectPage';
 import { ObjectsPage } from './pages/objects/ObjectsPage';
 import { RunPage } from './pages/runs/RunPage';
 import { SignInPage } from './pages/signin/SignInPage';
+import { BulletinPage } from './pages/bulletins/BulletinPage';
+import { BulletinsPage } from './pages/bulletins/BulletinsPage';
+import { VersionPage } from './pages/bulletins/VersionPage';
+import { BriefingPage } from './pages/briefings/BriefingPage';
+import { BriefingsPage } from './pages/briefings/BriefingsPage';
 
 export const router = createBrowserRouter([
   {
@@ -46,6 +51,31 @@ export const router = createBrowserRouter([
                 <RunPage />
               </RequireAbility>
             ),
+          },
+          {
+            path: 'bulletins',
+            element: (
+              <RequireAbility action="read" subject="Bulletin">
+                <Outlet />
+              </RequireAbility>
+            ),
+            children: [
+              { index: true, element: <BulletinsPage /> },
+              { path: ':id', element: <BulletinPage /> },
+              { path: ':id/versions/:version', element: <VersionPage /> },
+            ],
+          },
+          {
+            path: 'briefings',
+            element: (
+              <RequireAbility action="read" subject="Briefing">
+                <Outlet />
+              </RequireAbility>
+            ),
+            children: [
+              { index: true, element: <BriefingsPage /> },
+              { path: ':id', element: <BriefingPage /> },
+            ],
           },
           {
             path: 'admin/users',

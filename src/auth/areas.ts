@@ -21,6 +21,8 @@ export type Area = {
  */
 export const AREAS: Area[] = [
   { to: '/objects', label: 'Objects', action: 'read', subject: 'TrackedObject' },
+  { to: '/bulletins', label: 'Bulletins', action: 'read', subject: 'Bulletin' },
+  { to: '/briefings', label: 'Briefings', action: 'read', subject: 'Briefing' },
   { to: '/admin/users', label: 'Users', action: 'read', subject: 'User' },
   { to: '/account', label: 'Account', action: 'read', subject: 'Account' },
 ];
@@ -41,6 +43,34 @@ export const TASKS: Task[] = [
     description: 'Register an object or add a new solution version (CCSDS OPM, Tocsin JSON or a form), and compare versions.',
     action: 'create',
     subject: 'Solution',
+  },
+  {
+    to: '/bulletins',
+    title: 'Draft a bulletin',
+    description: 'Write a statement about one object for officials, with figures linked to a named run, and submit it for review.',
+    action: 'create',
+    subject: 'Bulletin',
+  },
+  {
+    to: '/bulletins?state=in_review',
+    title: 'Review bulletins',
+    description: 'Check each figure of a submitted bulletin against its run, then sign it off or ask for changes.',
+    action: 'approve',
+    subject: 'Bulletin',
+  },
+  {
+    to: '/bulletins?state=approved',
+    title: 'Distribute an approved bulletin',
+    description: 'Send a signed-off version to a stakeholder list and follow who received and acknowledged it.',
+    action: 'create',
+    subject: 'Distribution',
+  },
+  {
+    to: '/briefings',
+    title: 'Read and acknowledge briefings',
+    description: 'See the bulletins sent to you and tell the office you have received them.',
+    action: 'acknowledge',
+    subject: 'Briefing',
   },
   {
     to: '/admin/users#new-user',

@@ -107,13 +107,13 @@ function Toolbar({ editor, onInsert }: { editor: Editor; onInsert: (k: InsertKin
       )}
       <Sep />
       <ToolButton label="Insert figure" onClick={() => onInsert('figure')}>
-        <span className="text-accent-700">＋ Figure</span>
+        <span className="text-accent-700">+ Figure</span>
       </ToolButton>
       <ToolButton label="Insert risk table" onClick={() => onInsert('riskTable')}>
-        <span className="text-accent-700">＋ Risk table</span>
+        <span className="text-accent-700">+ Risk table</span>
       </ToolButton>
       <ToolButton label="Insert plot" onClick={() => onInsert('plot')}>
-        <span className="text-accent-700">＋ Plot</span>
+        <span className="text-accent-700">+ Plot</span>
       </ToolButton>
     </div>
   );

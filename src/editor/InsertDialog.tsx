@@ -4,9 +4,10 @@ import { useEffect, useId, useRef, useState } from 'react';
 import { FIGURE_QUANTITIES, FIGURE_QUANTITY_LABELS, OBJECT_LEVEL_QUANTITIES, type FigureQuantity } from '../../shared/bulletins/document';
 import { formatDistance, formatUtc } from '../../shared/format';
 import { safeParseAssessment } from '../../shared/schemas/assessment';
-import { useObjectRuns, useRun } from '../api/runs';
+import { useObjectRuns } from '../api/runs';
 import { Button, Notice, SelectField } from '../components/ui';
 import { previewFigure } from './preview';
+import { useRunQuery } from './sources';
 
 export type InsertKind = 'figure' | 'riskTable' | 'plot';
 
@@ -48,7 +49,7 @@ function InsertForm({ kind, objectId, titleId, onInsert, onClose }: { kind: Inse
   const done = (runs.data ?? []).filter((r) => r.status === 'done');
   const [runId, setRunId] = useState<number | null>(null);
   const chosenRunId = runId ?? done[0]?.id ?? null;
-  const run = useRun(chosenRunId ?? 0);
+  const run = useRunQuery(chosenRunId ?? 0, chosenRunId !== null);
   const [quantity, setQuantity] = useState<FigureQuantity>('impactProbability');
   const [approach, setApproach] = useState(0);
   const [plotKind, setPlotKind] = useState<'bplane' | 'distance'>('bplane');
@@ -120,7 +121,7 @@ function InsertForm({ kind, objectId, titleId, onInsert, onClose }: { kind: Inse
             </SelectField>
           )
         )}
-        {chosenRunId !== null && run.isPending && <p className="text-sm text-ink-soft">Loading run #{chosenRunId}…</p>}
+        {chosenRunId !== null && run.isLoading && <p className="text-sm text-ink-soft">Loading run #{chosenRunId}…</p>}
         {parsed && !parsed.ok && <Notice tone="error">The result of run #{chosenRunId} could not be read: {parsed.error}</Notice>}
         {preview && (
           <div className="rounded-md border border-rule bg-paper px-4 py-3" data-testid="figure-preview">

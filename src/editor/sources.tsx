@@ -17,7 +17,8 @@ export function sameFigure(a: LinkedFigureAttrs, b: LinkedFigureAttrs): boolean 
   return a.runId === b.runId && a.quantity === b.quantity && (a.body ?? null) === (b.body ?? null) && (a.epochTdbJd ?? null) === (b.epochTdbJd ?? null);
 }
 
-function useRunQuery(runId: number, enabled: boolean) {
+/** One run's detail (shared cache with the run page), fetched only when enabled and the id is real. */
+export function useRunQuery(runId: number, enabled: boolean) {
   return useQuery({
     queryKey: runKeys.detail(runId),
     queryFn: () => api<Run>('GET', `/api/runs/${runId}`),

@@ -24,17 +24,19 @@ import {
 } from './harness';
 
 const EXPECTED_NAV: Record<(typeof DEMO_ROLES)[number], string[]> = {
-  admin: ['Home', 'Objects', 'Users', 'Account'],
-  analyst: ['Home', 'Objects', 'Account'],
-  reviewer: ['Home', 'Objects', 'Account'],
-  communications: ['Home', 'Account'],
-  liaison: ['Home', 'Account'],
+  admin: ['Home', 'Objects', 'Bulletins', 'Users', 'Account'],
+  analyst: ['Home', 'Objects', 'Bulletins', 'Account'],
+  reviewer: ['Home', 'Objects', 'Bulletins', 'Account'],
+  communications: ['Home', 'Bulletins', 'Account'],
+  liaison: ['Home', 'Briefings', 'Account'],
 };
 
 const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
   Home: { path: '/', heading: /^Good to see you, \S+$/ },
   Users: { path: '/admin/users', heading: /^Users$/ },
   Objects: { path: '/objects', heading: /^Objects$/ },
+  Bulletins: { path: '/bulletins', heading: /^Bulletins$/ },
+  Briefings: { path: '/briefings', heading: /^Briefings$/ },
   Account: { path: '/account', heading: /^Your account$/ },
 };
 

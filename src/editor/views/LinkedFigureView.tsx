@@ -68,7 +68,7 @@ export function LinkedFigureView({ node, updateAttributes, selected }: ReactNode
         tabIndex={0}
         aria-describedby={tipId}
         className={
-          'rounded px-1 py-0.5 tabular-nums outline-offset-1 ' +
+          'rounded px-1 py-0.5 whitespace-nowrap tabular-nums outline-offset-1 ' +
           (stale ? 'bg-signal-50 text-signal-700 line-through decoration-signal-700/60' : 'bg-accent-50 text-accent-800 underline decoration-dotted decoration-accent-600 underline-offset-4') +
           ring
         }
