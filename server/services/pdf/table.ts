@@ -31,6 +31,7 @@ export function drawTable(doc: PDFKit.PDFDocument, fonts: FontSet, spec: TableSp
   const rowHeight = (cells: Cell[]) =>
     Math.max(...cells.map((c, i) => paragraphHeight(doc, c, widths[i] - 2 * pad, opts))) + 2 * pad + 1;
 
+  let first = true; // the first row drawn on a page gets a top rule
   const drawRow = (cells: Cell[], header: boolean, stripe: boolean) => {
     const h = rowHeight(cells);
     const y = doc.y;
@@ -45,7 +46,8 @@ export function drawTable(doc: PDFKit.PDFDocument, fonts: FontSet, spec: TableSp
     });
     doc.lineWidth(0.5).strokeColor(COLOR.tableBorder);
     doc.moveTo(box.x, y + h).lineTo(box.x + box.width, y + h).stroke();
-    if (header) doc.moveTo(box.x, y).lineTo(box.x + box.width, y).stroke();
+    if (header || first) doc.moveTo(box.x, y).lineTo(box.x + box.width, y).stroke();
+    first = false;
     doc.y = y + h;
     doc.x = box.x;
   };
@@ -53,6 +55,7 @@ export function drawTable(doc: PDFKit.PDFDocument, fonts: FontSet, spec: TableSp
   const ensure = (h: number): boolean => {
     if (doc.y + h > bottomLimit(doc)) {
       doc.addPage();
+      first = true;
       return true;
     }
     return false;
