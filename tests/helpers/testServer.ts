@@ -32,6 +32,8 @@ export interface TestMail {
   text: string;
   html: string;
   date: Date;
+  /** Attached files as parsed from the MIME message. */
+  attachments: { filename: string; contentType: string; content: Buffer }[];
 }
 
 export interface TestServer {
@@ -49,6 +51,9 @@ export interface TestServer {
     /** Wait (up to timeoutMs) for a message to this address and return the newest one. */
     waitFor(to: string, timeoutMs?: number): Promise<TestMail>;
     clear(): void;
+    /** Stop the SMTP fake (connections are refused, so mail stays in the outbox) and start it again on the same port. */
+    stop(): Promise<void>;
+    start(): Promise<void>;
   };
   close(): Promise<void>;
 }
@@ -71,39 +76,66 @@ export interface TestServerOptions {
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
-/** An SMTP server in this process that keeps every message it receives. */
-export async function startSmtpFake(): Promise<{ port: number; messages(): Promise<TestMail[]>; clear(): void; close(): Promise<void> }> {
+/**
+ * An SMTP server in this process that keeps every message it receives. `stop()` closes it and `start()` listens
+ * again on the same port (messages received before are kept).
+ */
+export async function startSmtpFake(opts: { port?: number } = {}): Promise<{
+  port: number;
+  messages(): Promise<TestMail[]>;
+  clear(): void;
+  stop(): Promise<void>;
+  start(): Promise<void>;
+  close(): Promise<void>;
+}> {
   let pending: Promise<TestMail>[] = [];
-  const server = new SMTPServer({
-    authOptional: true,
-    disabledCommands: ['AUTH', 'STARTTLS'],
-    logger: false,
-    onData(stream, sessionInfo, callback) {
-      const to = sessionInfo.envelope.rcptTo.map((r) => r.address);
-      const parsed = simpleParser(stream).then((m) => ({
-        from: m.from?.text ?? '',
-        to,
-        subject: m.subject ?? '',
-        text: m.text ?? '',
-        html: typeof m.html === 'string' ? m.html : '',
-        date: m.date ?? new Date(),
-      }));
-      pending.push(parsed);
-      parsed.then(() => callback(), (err) => callback(err as Error));
-    },
-  });
-  await new Promise<void>((resolve, reject) => {
-    server.once('error', reject);
-    server.listen(0, '127.0.0.1', () => resolve());
-  });
-  const port = (server.server.address() as AddressInfo).port;
+  const create = () =>
+    new SMTPServer({
+      authOptional: true,
+      disabledCommands: ['AUTH', 'STARTTLS'],
+      logger: false,
+      onData(stream, sessionInfo, callback) {
+        const to = sessionInfo.envelope.rcptTo.map((r) => r.address);
+        const parsed = simpleParser(stream).then((m) => ({
+          from: m.from?.text ?? '',
+          to,
+          subject: m.subject ?? '',
+          text: m.text ?? '',
+          html: typeof m.html === 'string' ? m.html : '',
+          date: m.date ?? new Date(),
+          attachments: m.attachments.map((a) => ({ filename: a.filename ?? '', contentType: a.contentType, content: a.content })),
+        }));
+        pending.push(parsed);
+        parsed.then(() => callback(), (err) => callback(err as Error));
+      },
+    });
+  let server: SMTPServer | null = null;
+  const listen = async (port: number) => {
+    const s = create();
+    await new Promise<void>((resolve, reject) => {
+      s.server.once('error', reject);
+      s.listen(port, '127.0.0.1', () => resolve());
+    });
+    server = s;
+    return (s.server.address() as AddressInfo).port;
+  };
+  const close = async () => {
+    const s = server;
+    server = null;
+    if (s) await new Promise<void>((resolve) => s.close(() => resolve()));
+  };
+  const port = await listen(opts.port ?? 0);
   return {
     port,
     messages: () => Promise.all(pending),
     clear: () => {
       pending = [];
     },
-    close: () => new Promise<void>((resolve) => server.close(() => resolve())),
+    stop: close,
+    async start() {
+      if (!server) await listen(port);
+    },
+    close,
   };
 }
 
@@ -145,6 +177,8 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
     mail: {
       messages,
       clear: smtp.clear,
+      stop: smtp.stop,
+      start: smtp.start,
       async waitFor(to, timeoutMs = 5000) {
         const until = Date.now() + timeoutMs;
         for (;;) {
