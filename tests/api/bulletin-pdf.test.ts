@@ -105,6 +105,24 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
   });
 });
 
+describe('navigation and the stale-figure reason', () => {
+  it('has bookmarks for the title and the headings, and declares its language', () => {
+    // pdfkit writes outline items and the catalog as plain (uncompressed) objects; ASCII titles as literal strings.
+    const raw = pdf.toString('latin1');
+    for (const title of [version.title, 'What is known', 'What is not known', 'Review and sign-off']) expect(raw).toContain(`/Title (${title})`);
+    expect(raw).toMatch(/\/Lang \(en\)/);
+  });
+
+  it('prints the author’s written reason when the version was submitted with out-of-date figures', async () => {
+    const reason = 'A newer run only moved the encounter time by 40 s; figures left bound to run 41.';
+    const f = save('stale.pdf', await renderBulletinPdf({ ...structuredClone(version), staleReason: reason }));
+    const t = text(f);
+    expect(t).toContain('Submitted with out-of-date figures.');
+    expect(t).toContain(reason);
+    expect(text(file)).not.toContain('Submitted with out-of-date figures');
+  });
+});
+
 describe('images', () => {
   it('embeds a data-URL image from the document and names an external one instead of fetching it', () => {
     // pdfimages -list: header lines, then one line per image with its pixel size

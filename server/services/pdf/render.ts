@@ -57,6 +57,12 @@ function utcText(iso: string): string {
   return m ? `${m[1]} ${m[2]} UTC` : iso;
 }
 
+/** A bookmark (PDF outline entry) for a heading, pointing at the current page. */
+function outline(ctx: Ctx, title: string): void {
+  const t = title.replace(/\s+/g, ' ').trim();
+  if (t) ctx.doc.outline.addItem(t);
+}
+
 // ---------------------------------------------------------------------------------------------------------------
 // Inline content
 
@@ -136,6 +142,7 @@ function heading(ctx: Ctx, node: PdfDocNode, box: Box): void {
   doc.y += SPACING.headingBeforePt;
   // Keep the heading with the first lines of what follows it.
   ensureSpace(doc, paragraphHeight(doc, runs, box.width, { size }) + 3 * FONT_SIZE.body * 1.4);
+  outline(ctx, runs.map((r) => r.text).join(''));
   writeParagraph(ctx.doc, ctx.fonts, runs, box, { size });
   doc.y += SPACING.headingAfterPt;
 }
@@ -333,6 +340,7 @@ function plot(ctx: Ctx, node: PdfDocNode, box: Box): void {
 function titleBlock(ctx: Ctx): void {
   const { doc, version: v, fonts } = ctx;
   const box = fullBox(doc);
+  outline(ctx, v.title);
   writeParagraph(doc, fonts, [{ text: v.officeName.toUpperCase(), bold: true, color: COLOR.muted }], box, { size: FONT_SIZE.office });
   doc.y += 4;
   writeParagraph(doc, fonts, [{ text: v.title, bold: true }], box, { size: FONT_SIZE.title });
@@ -381,6 +389,7 @@ function sectionTitle(ctx: Ctx, text: string, box: Box, keep: number): void {
   const { doc } = ctx;
   doc.y += SPACING.headingBeforePt;
   ensureSpace(doc, FONT_SIZE.h3 * 1.5 + keep);
+  outline(ctx, text);
   writeParagraph(doc, ctx.fonts, [{ text, bold: true }], box, { size: FONT_SIZE.h3 });
   doc.y += SPACING.headingAfterPt;
 }
@@ -448,6 +457,14 @@ function signOff(ctx: Ctx): void {
     }
     doc.y += 4;
   }
+  if (v.staleReason && v.staleReason.trim() !== '') {
+    paragraph(
+      ctx,
+      [{ text: 'Submitted with out-of-date figures. ', bold: true, color: COLOR.accent }, { text: 'The author’s reason: ', bold: true }, { text: v.staleReason, italic: true }],
+      box,
+      FONT_SIZE.signOff,
+    );
+  }
   paragraph(
     ctx,
     [{ text: 'Reviewer’s comment: ', bold: true }, { text: v.signOff.comment && v.signOff.comment.trim() !== '' ? v.signOff.comment : '(none)', italic: true }],
@@ -493,6 +510,8 @@ export async function renderBulletinPdfImpl(v: BulletinVersionForPdf): Promise<B
     size: PAGE.size,
     margins: { top: PAGE.marginTopPt, left: PAGE.marginSidePt, right: PAGE.marginSidePt, bottom: PAGE.marginBottomPt },
     bufferPages: true,
+    lang: 'en',
+    displayTitle: true,
     autoFirstPage: true,
     compress: true,
     info: {
