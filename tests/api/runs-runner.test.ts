@@ -5,9 +5,10 @@
 // tests are about the queue (claim, lease, fencing), which does not depend on what the work computes. The real
 // engine path is covered by tests/api/runs.test.ts and by the demo runs below (real engine).
 // Source: common practice for lease-based job queues (atomic claim, heartbeat, fencing on the lease owner), no source.
+import { spawn } from 'node:child_process';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { assessmentRuns, orbitSolutions } from '../../server/db/schema';
+import { assessmentRuns, orbitSolutions, trackedObjects } from '../../server/db/schema';
 import type { Executor } from '../../server/services/runs/executor';
 import { queueDemoRuns } from '../../server/services/runs/demoRuns';
 import { createRunner, type Runner } from '../../server/services/runs/runner';
@@ -124,4 +125,49 @@ describe('demo runs', () => {
       await demo.close();
     }
   }, 150_000);
+});
+
+describe('a runner process killed in the middle of a run', () => {
+  it('leaves the run to the next start, which takes it over at once (its owner process is gone) and finishes it', async () => {
+    const crash = await startTestServer({ runner: false });
+    try {
+      const neaSolution = crash.db
+        .select({ id: orbitSolutions.id })
+        .from(orbitSolutions)
+        .innerJoin(trackedObjects, eq(trackedObjects.id, orbitSolutions.objectId))
+        .where(eq(trackedObjects.designation, 'HSO-26-N4'))
+        .get()!.id;
+      const id = crash.services.runs.create({ solutionId: neaSolution, until: '2035-01-01T00:00:00Z', methods: ['linear', 'lov'], clones: 1, seed: 1, bodies: ['earth'], maxAu: 0.05 }, null).id;
+      const child = spawn(process.execPath, ['--import', 'tsx', 'tests/helpers/runnerProcess.ts', crash.databaseFile], { stdio: ['ignore', 'pipe', 'pipe'] });
+      let stderr = '';
+      child.stderr.on('data', (d) => (stderr += d));
+      const exited = new Promise<void>((resolve) => child.on('exit', () => resolve()));
+      const row = () => crash.db.select().from(assessmentRuns).where(eq(assessmentRuns.id, id)).get()!;
+      // the child claims the run and gets into the line of variations
+      await expect.poll(() => { const r = row(); return r.status === 'running' && r.progressStage === 'lov' && r.progressDone > 0; }, { timeout: 90_000, interval: 50 }).toBe(true);
+      const owner = row().leaseOwner!;
+      expect(owner.split('/')[1]).toBe(String(child.pid));
+      child.kill('SIGKILL');
+      await exited;
+      // as the crash left it: still 'running', owned by the dead process, lease good for about a minute more
+      expect(row()).toMatchObject({ status: 'running', attempts: 1, leaseOwner: owner });
+      const leaseEndAtCrash = row().leaseExpiresAt!.getTime();
+      expect(leaseEndAtCrash).toBeGreaterThan(Date.now() + 30_000);
+
+      const next = createRunner(crash.db, crash.services.runs, { leaseMs: 60_000, pollMs: 100, log: () => undefined });
+      next.start();
+      try {
+        await expect.poll(() => row().status, { timeout: 90_000, interval: 100 }).toBe('done');
+      } finally {
+        await next.stop();
+      }
+      // finished well before the dead owner's lease would have run out: taken over because its process is gone
+      expect(row().finishedAt!.getTime()).toBeLessThan(leaseEndAtCrash);
+      expect(row()).toMatchObject({ status: 'done', attempts: 2, leaseOwner: null });
+      expect(JSON.parse(row().resultJson!).object).toBe('HSO-26-N4');
+      expect(stderr).toContain(`run ${id}: claimed by ${owner}`);
+    } finally {
+      await crash.close();
+    }
+  }, 240_000);
 });
