@@ -9,7 +9,7 @@ import { mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { renderBulletinPdf, type BulletinVersionForPdf } from '../../server/services/pdf';
+import { clearBulletinPdfCache, renderBulletinPdf, type BulletinVersionForPdf } from '../../server/services/pdf';
 import { FontSet } from '../../server/services/pdf/fonts';
 import { STANDING_CAUTION } from '../../templates/pdf/layout';
 import PDFDocument from 'pdfkit';
@@ -164,8 +164,17 @@ describe('fonts', () => {
 
 describe('byte stability', () => {
   it('renders the same version to the same bytes', async () => {
+    clearBulletinPdfCache(); // a fresh layout, not the cached copy
     const again = await renderBulletinPdf(structuredClone(version));
+    expect(again).not.toBe(pdf);
     expect(again.equals(pdf)).toBe(true);
+  });
+
+  it('serves a repeated request from the cache as a copy the caller cannot spoil', async () => {
+    const a = await renderBulletinPdf(version);
+    a.fill(0);
+    const b = await renderBulletinPdf(version);
+    expect(b.equals(pdf)).toBe(true);
   });
 
   it('renders the same bytes in another process, time zone and locale', () => {

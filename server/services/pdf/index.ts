@@ -8,6 +8,7 @@
  * snapshots, sign-off, SHA-256) plus what the PDF shows beside it: the office name, the object's name, the
  * distribution marking, and the frozen engine results of the runs the document embeds (risk tables and plots).
  */
+import { createHash } from 'node:crypto';
 import type { BulletinVersion } from '../../../shared/schemas/bulletins';
 
 export type BulletinVersionForPdf = BulletinVersion & {
@@ -23,7 +24,30 @@ export type BulletinVersionForPdf = BulletinVersion & {
   runs: Record<string, { runId: number; result: unknown }>;
 };
 
+/**
+ * Recently rendered PDFs by a hash of their whole input (the output is a pure function of it), so a download right
+ * after a distribution, or the same version sent to many lists, is not laid out again. Concurrent requests for the
+ * same input share one rendering. Small: a few PDFs of some 50-500 kB.
+ */
+const CACHE_SIZE = 8;
+const cache = new Map<string, Promise<Buffer>>();
+
 export async function renderBulletinPdf(version: BulletinVersionForPdf): Promise<Buffer> {
-  const { renderBulletinPdfImpl } = await import('./render');
-  return renderBulletinPdfImpl(version);
+  const key = createHash('sha256').update(JSON.stringify(version)).digest('hex');
+  let pending = cache.get(key);
+  if (pending) {
+    cache.delete(key); // most recently used goes last
+  } else {
+    pending = import('./render').then(({ renderBulletinPdfImpl }) => renderBulletinPdfImpl(version));
+    pending.catch(() => cache.delete(key));
+  }
+  cache.set(key, pending);
+  while (cache.size > CACHE_SIZE) cache.delete(cache.keys().next().value!);
+  // A copy: callers may not change the cached bytes.
+  return Buffer.from(await pending);
+}
+
+/** Forget cached PDFs (tests that must measure a fresh rendering). */
+export function clearBulletinPdfCache(): void {
+  cache.clear();
 }
