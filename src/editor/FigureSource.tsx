@@ -3,6 +3,7 @@
 // version reads them from its frozen snapshots. Node views only call the hooks of the source in context.
 import { createContext, useContext } from 'react';
 import type { FigureValue, LinkedFigureAttrs } from '../../shared/bulletins/document';
+import type { Run } from '../../shared/schemas/runs';
 
 export type FigureLookup =
   | { state: 'loading' }
@@ -17,7 +18,7 @@ export type FigureLookup =
 export type RunResultLookup =
   | { state: 'loading' }
   | { state: 'missing'; message: string }
-  | { state: 'ok'; runId: number; result: Record<string, unknown> };
+  | { state: 'ok'; runId: number; result: Record<string, unknown>; run: Run };
 
 export interface FigureSource {
   /** Whether the figures may be rebound or edited (a draft the user may write). */

@@ -33,7 +33,7 @@ function useRunResultFrom(runId: number, enabled: boolean, refusal: string): Run
   if (q.isPending) return { state: 'loading' };
   if (q.isError) return { state: 'missing', message: `Run #${runId} could not be loaded.` };
   if (!q.data.result) return { state: 'missing', message: `Run #${runId} has no result (${q.data.status}).` };
-  return { state: 'ok', runId, result: q.data.result };
+  return { state: 'ok', runId, result: q.data.result, run: q.data };
 }
 
 export function useLiveFigureSource(objectId: number, statuses: FigureStatus[], editable: boolean): FigureSource {

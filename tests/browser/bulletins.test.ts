@@ -44,6 +44,21 @@ async function finishedRun(page: Page, objectId: number): Promise<number> {
   }
 }
 
+/** Shared between the tests below (they run in order on one server). */
+let firstRunId = 0;
+let approvedBulletinId = 0;
+let objectIdOfN4 = 0;
+
+async function signedInPage(role: Parameters<typeof demoCredentials>[0]) {
+  const context = await newContext(browser, server.url);
+  const page = await context.newPage();
+  const errors = watchPageErrors(page, [401, 409]);
+  const { email, password } = demoCredentials(role);
+  await signIn(page, email, password);
+  await page.waitForURL((u) => u.pathname === '/');
+  return { context, page, errors };
+}
+
 describe('bulletins in the browser', () => {
   it('an analyst drafts with a linked figure and submits; another user approves; the PDF downloads', async () => {
     const context = await newContext(browser, server.url);
@@ -61,6 +76,8 @@ describe('bulletins in the browser', () => {
     const objects = await apiJson(page, 'GET', '/api/objects?q=HSO-26-N4');
     const objectId = objects.items[0].id as number;
     const runId = await finishedRun(page, objectId);
+    firstRunId = runId;
+    objectIdOfN4 = objectId;
 
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Bulletins', exact: true }).click();
     expect(await waitForHeading(page, 'Bulletins')).toBe('Bulletins');
@@ -69,6 +86,7 @@ describe('bulletins in the browser', () => {
     await page.getByRole('button', { name: 'Create draft' }).click();
     await page.waitForURL(/\/bulletins\/\d+$/);
     const bulletinId = Number(new URL(page.url()).pathname.split('/').pop());
+    approvedBulletinId = bulletinId;
     expect(await waitForHeading(page, /Close approach of HSO-26-N4/)).toMatch(/^\S+: Close approach of HSO-26-N4 in September 2034$/);
 
     const editor = page.getByTestId('bulletin-editor');
@@ -149,6 +167,135 @@ describe('bulletins in the browser', () => {
     expect(bytes.length).toBeGreaterThan(1000);
 
     expect(refused).toEqual([]);
+    expect(errors).toEqual([]);
+    await context.close();
+  }, 240_000);
+
+  it('communications sends the approved version to a list; the liaison acknowledges; the sender sees it', async () => {
+    expect(approvedBulletinId).toBeGreaterThan(0);
+    // a government list with the demo liaison (admins manage stakeholder lists)
+    const admin = await signedInPage('admin');
+    const { users } = await apiJson(admin.page, 'GET', '/api/users');
+    const liaison = (users as { id: number; email: string }[]).find((u) => u.email === demoCredentials('liaison').email)!;
+    await apiJson(admin.page, 'POST', '/api/stakeholder-lists', {
+      name: 'Civil protection liaisons',
+      kind: 'government',
+      description: 'Test list',
+      members: [{ userId: liaison.id }],
+    });
+    await admin.context.close();
+
+    const comms = await signedInPage('communications');
+    await comms.page.goto(`/bulletins/${approvedBulletinId}`);
+    await comms.page.getByRole('button', { name: 'Distribute…' }).click();
+    const dialog = comms.page.getByRole('dialog', { name: 'Distribute version 1' });
+    await dialog.getByLabel('Stakeholder list').selectOption({ index: 1 });
+    expect(await dialog.textContent()).toContain('Civil protection liaisons');
+    await dialog.getByRole('button', { name: 'Send' }).click();
+    const card = comms.page.locator('[data-testid^="distribution-"]').first();
+    await card.waitFor();
+    await comms.page.getByTestId('bulletin-state').filter({ hasText: 'Distributed' }).first().waitFor();
+    expect(await card.textContent()).toContain('not yet');
+
+    const liaisonPage = await signedInPage('liaison');
+    const lp = liaisonPage.page;
+    await lp.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Briefings', exact: true }).click();
+    expect(await waitForHeading(lp, 'Briefings')).toBe('Briefings');
+    await lp.getByRole('link', { name: /Close approach of HSO-26-N4/ }).click();
+    await lp.getByTestId('acknowledge-card').waitFor();
+    expect(await lp.getByTestId('linked-figure').first().textContent()).toMatch(/km/);
+    await lp.getByLabel('Note to the office (optional)').fill('Received; passed to the duty officer.');
+    await screenshot(lp, 'liaison-briefing');
+    await lp.getByRole('button', { name: 'Acknowledge receipt' }).click();
+    await lp.getByText(/You acknowledged this briefing on/).waitFor();
+    await lp.getByRole('link', { name: '← Briefings' }).click();
+    await lp.getByText(/^Acknowledged /).first().waitFor();
+    await screenshot(lp, 'liaison-inbox');
+    expect(liaisonPage.errors).toEqual([]);
+    await liaisonPage.context.close();
+
+    // the sender sees the acknowledgement (after a reload; the list polls only while deliveries are pending)
+    await comms.page.reload();
+    const after = comms.page.locator('[data-testid^="distribution-"]').first();
+    await after.waitFor();
+    await comms.page.waitForFunction(() => /1 acknowledged/.test(document.querySelector('[data-testid^="distribution-"]')?.textContent ?? ''), null, { timeout: 15_000 });
+    expect(await after.textContent()).toContain('passed to the duty officer');
+    await screenshot(comms.page, 'bulletin-distributed');
+    expect(comms.errors).toEqual([]);
+    await comms.context.close();
+  }, 120_000);
+
+  it('marks a figure out of date after a newer run, asks for a reason to submit, rebinds; a concurrent save keeps both copies', async () => {
+    expect(firstRunId).toBeGreaterThan(0);
+    const { context, page, errors } = await signedInPage('analyst');
+    const doc = {
+      type: 'doc',
+      content: [
+        { type: 'heading', attrs: { level: 2 }, content: [{ type: 'text', text: 'Assessment' }] },
+        {
+          type: 'paragraph',
+          content: [
+            { type: 'text', text: 'Nominal miss distance ' },
+            { type: 'linkedFigure', attrs: { runId: firstRunId, quantity: 'missDistance', body: 'earth', epochTdbJd: 2464222.75 } },
+            { type: 'text', text: '.' },
+          ],
+        },
+        { type: 'riskTable', attrs: { runId: firstRunId } },
+      ],
+    };
+    // the figure's epoch is matched to the nearest Earth approach within 30 days (shared/bulletins/document.ts)
+    const created = await apiJson(page, 'POST', '/api/bulletins', { objectId: objectIdOfN4, title: 'Update after new observations', document: doc });
+    const secondRunId = await finishedRun(page, objectIdOfN4);
+    expect(secondRunId).toBeGreaterThan(firstRunId);
+
+    await page.goto(`/bulletins/${created.id}`);
+    const figure = page.getByTestId('linked-figure').first();
+    await figure.waitFor();
+    expect(await figure.getAttribute('data-figure-state')).toBe('stale');
+    const stale = figure.getByTestId('stale-figure');
+    expect(await stale.textContent()).toContain(`run #${secondRunId}`);
+    await page.getByTestId('risk-table-block').getByTestId('encounter-table').waitFor();
+    await screenshot(page, 'bulletin-stale-figure');
+
+    // submitting needs a written reason while a figure is out of date
+    await page.getByRole('button', { name: 'Submit for review' }).click();
+    const submit = page.getByRole('dialog', { name: 'Submit for review' });
+    const confirm = submit.getByRole('button', { name: 'Submit for review' });
+    expect(await confirm.isDisabled()).toBe(true);
+    await submit.getByLabel(/Why submit with these figures/).fill('too short');
+    expect(await confirm.isDisabled()).toBe(true);
+    await submit.getByLabel(/Why submit with these figures/).fill('The new run only refines the orbit; the statement stands.');
+    expect(await confirm.isDisabled()).toBe(false);
+    await submit.getByRole('button', { name: 'Cancel' }).click();
+
+    // one action rebinds the figure to the newer run; the autosave stores it
+    await stale.getByRole('button', { name: `Rebind to run #${secondRunId}` }).click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="linked-figure"]')?.getAttribute('data-figure-state') === 'current');
+    await page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'saved' && !/revision 1$/.test(document.querySelector('[data-testid="save-status"]')?.textContent ?? ''));
+    const rebound = await apiJson(page, 'GET', `/api/bulletins/${created.id}`);
+    expect(rebound.figures[0].attrs.runId).toBe(secondRunId);
+    expect(rebound.staleFigureCount).toBe(0);
+
+    // someone else saves meanwhile (another tab): our next save is refused with 409 and both copies stay
+    const { csrfToken } = await (await page.request.get('/api/csrf')).json();
+    const other = await page.request.put(`/api/bulletins/${created.id}`, {
+      data: { revision: rebound.revision, title: rebound.title, document: { type: 'doc', content: [{ type: 'paragraph', content: [{ type: 'text', text: 'Text written in the other tab.' }] }] } },
+      headers: { 'x-csrf-token': csrfToken },
+    });
+    expect(other.status()).toBe(200);
+    await page.getByTestId('bulletin-editor').click();
+    await page.keyboard.press('Control+End');
+    await page.keyboard.type(' My closing sentence.');
+    await page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'conflict');
+    const theirs = page.getByTestId('conflict-current-copy');
+    expect(await theirs.textContent()).toContain('Text written in the other tab.');
+    expect(await page.getByTestId('bulletin-editor').textContent()).toContain('My closing sentence.');
+    await screenshot(page, 'bulletin-conflict');
+    await page.getByRole('button', { name: /^Keep my version/ }).click();
+    await page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'saved');
+    const kept = await apiJson(page, 'GET', `/api/bulletins/${created.id}`);
+    expect(JSON.stringify(kept.document)).toContain('My closing sentence.');
+    expect(kept.revision).toBe(rebound.revision + 2);
     expect(errors).toEqual([]);
     await context.close();
   }, 240_000);

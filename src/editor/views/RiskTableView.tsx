@@ -1,31 +1,54 @@
-// The risk-table block: a run's encounter table, embedded read-only in the bulletin.
+// The risk-table block: a run's encounter table (the results area's EncounterTable, with its unit switch),
+// embedded read-only in the bulletin.
 import { NodeViewWrapper, type ReactNodeViewProps } from '@tiptap/react';
+import { useId, useMemo, useState } from 'react';
+import type { DistanceUnit } from '../../../shared/format';
+import { safeParseAssessment } from '../../../shared/schemas/assessment';
+import type { Run } from '../../../shared/schemas/runs';
+import { EncounterTable } from '../../components/results/EncounterTable';
+import { resultSource } from '../../components/results/RunResults';
+import { UnitSwitch } from '../../components/results/UnitSwitch';
 import { useFigureSource } from '../FigureSource';
-import { CompactEncounterTable } from './CompactEncounterTable';
 
-export function EmbedFrame({ title, selected, children, testId }: { title: string; selected: boolean; children: React.ReactNode; testId: string }) {
+export function EmbedFrame({ title, selected, children, testId, tools }: { title: string; selected: boolean; children: React.ReactNode; testId: string; tools?: React.ReactNode }) {
   return (
     <NodeViewWrapper
       contentEditable={false}
       data-testid={testId}
-      className={`my-4 rounded-md border bg-white p-3 ${selected ? 'border-accent-600 ring-2 ring-accent-600/40' : 'border-rule'}`}
+      className={`my-4 rounded-md border bg-white p-3 font-sans ${selected ? 'border-accent-600 ring-2 ring-accent-600/40' : 'border-rule'}`}
     >
-      <p className="mb-2 font-sans text-xs font-semibold tracking-wide text-ink-soft uppercase" data-drag-handle>
-        {title}
-      </p>
+      <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
+        <p className="text-xs font-semibold tracking-wide text-ink-soft uppercase" data-drag-handle>
+          {title}
+        </p>
+        {tools}
+      </div>
       {children}
     </NodeViewWrapper>
   );
 }
 
+function EmbeddedTable({ run, result, unit }: { run: Run; result: Record<string, unknown>; unit: DistanceUnit }) {
+  const parsed = useMemo(() => safeParseAssessment(result), [result]);
+  if (!parsed.ok) return <p className="text-sm text-danger-700">The engine result of run #{run.id} could not be read ({parsed.error}).</p>;
+  return <EncounterTable result={parsed.value} source={resultSource(run, parsed.value)} unit={unit} selected={null} onSelect={() => undefined} />;
+}
+
 export function RiskTableView({ node, selected }: ReactNodeViewProps) {
   const runId = Number(node.attrs.runId);
   const lookup = useFigureSource().useRunResult(runId);
+  const [unit, setUnit] = useState<DistanceUnit>('km');
+  const unitName = useId();
   return (
-    <EmbedFrame title={`Close approaches · run #${runId}`} selected={selected} testId="risk-table-block">
+    <EmbedFrame
+      title={`Close approaches · run #${runId}`}
+      selected={selected}
+      testId="risk-table-block"
+      tools={lookup.state === 'ok' ? <UnitSwitch value={unit} onChange={setUnit} name={unitName} /> : undefined}
+    >
       {lookup.state === 'loading' && <p className="text-sm text-ink-soft">Loading run #{runId}…</p>}
-      {lookup.state === 'missing' && <p className="text-sm text-danger-700">{lookup.message}</p>}
-      {lookup.state === 'ok' && <CompactEncounterTable result={lookup.result} runId={runId} />}
+      {lookup.state === 'missing' && <p className="text-sm text-ink-soft">{lookup.message}</p>}
+      {lookup.state === 'ok' && <EmbeddedTable run={lookup.run} result={lookup.result} unit={unit} />}
     </EmbedFrame>
   );
 }
