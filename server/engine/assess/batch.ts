@@ -27,7 +27,8 @@ import { ApproachMonitor, type CloseApproach } from '../dynamics/approaches';
 import { NBodyForce } from '../dynamics/forces';
 import { Ias15 } from '../dynamics/ias15';
 import { ImpactMonitor, type ImpactEvent } from '../dynamics/propagate';
-import type { DynamicsBody, ForceModel, NonGravParams, PlanetEphemeris } from '../dynamics/types';
+import { bodyIndex, type DynamicsBody, type ForceModel, type NonGravParams, type PlanetEphemeris } from '../dynamics/types';
+import { AU_KM, RADIUS_KM } from '../constants';
 
 export type BatchOptions = {
   ephemeris: PlanetEphemeris;
@@ -73,6 +74,15 @@ const DEFAULT_IMPACT_BODIES: DynamicsBody[] = ['earth', 'moon', 'venus', 'mars']
 /** Where a stopped clone is parked: 1000 AU from the Sun, at rest (its accelerations are zeroed anyway). */
 const PARK_POSITION = [1000, 0, 0];
 const ZERO3 = [0, 0, 0];
+/**
+ * Screen of the per-clone monitors: a body's approach monitor is not run in a step when a lower bound of the
+ * clone's distance to it over the step exceeds SCREEN_APPROACH_FACTOR x maxAu (the bound uses the distances at the
+ * step ends and SCREEN_SPEED_FACTOR x the larger relative speed at the ends + SCREEN_SPEED_MARGIN_AU_D, a generous
+ * bound of the relative speed inside one step far from the body, where the speed hardly changes over a step).
+ */
+const SCREEN_APPROACH_FACTOR = 1.1;
+const SCREEN_SPEED_FACTOR = 2;
+const SCREEN_SPEED_MARGIN_AU_D = 0.002;
 
 /** Wraps a force model: clones in `parked` get zero acceleration. */
 class ParkingForce implements ForceModel {
@@ -95,12 +105,12 @@ class ParkingForce implements ForceModel {
 
 /**
  * Planet states shared by all clones: in lockstep every clone's monitors ask for the same sample times, so the
- * last few (body, time) states are kept (a 4-entry ring per body). Positions pass straight through.
+ * last few (body, time) states are kept (a 16-entry ring per body, newest first). Positions pass straight through.
  */
 export class SharedStateCache implements PlanetEphemeris {
   readonly startTdbDays: number;
   readonly endTdbDays: number;
-  private static readonly SLOTS = 4;
+  private static readonly SLOTS = 16;
   private readonly times: Float64Array;
   private readonly states: Float64Array;
   private readonly next: Int32Array;
@@ -120,7 +130,9 @@ export class SharedStateCache implements PlanetEphemeris {
     const S = SharedStateCache.SLOTS;
     const base = bodyIndex * S;
     const times = this.times, st = this.states;
-    for (let s = 0; s < S; s++) {
+    const newest = this.next[bodyIndex] + S - 1;
+    for (let r = 0; r < S; r++) {
+      const s = (newest - r) % S;
       if (times[base + s] === tdbDays) {
         const o = (base + s) * 6;
         out[0] = st[o]; out[1] = st[o + 1]; out[2] = st[o + 2]; out[3] = st[o + 3]; out[4] = st[o + 4]; out[5] = st[o + 5];
@@ -177,6 +189,47 @@ export function integrateBatch(opts: BatchOptions): BatchResult {
     stateAt.push((t: number, out: Float64Array) => integ.stateAt(t, out, i));
   }
 
+  // Screen (see the module comment): per clone and body, the distance and relative speed at the step ends, from the
+  // integrator's state (no dense output) and one planet state per body and step shared by all clones.
+  const screen: number[] = [];
+  for (const b of [...bodies, ...impactBodies]) {
+    const k = bodyIndex(b);
+    if (!screen.includes(k)) screen.push(k);
+  }
+  const nb = screen.length;
+  const approachOf = Int32Array.from(screen, (k) => bodies.findIndex((b) => bodyIndex(b) === k));
+  const impactOf = Int32Array.from(screen, (k) => impactBodies.findIndex((b) => bodyIndex(b) === k));
+  const impactRadius3 = Float64Array.from(screen, (k) => {
+    const b = impactBodies.find((x) => bodyIndex(x) === k);
+    return b ? (3 * (RADIUS_KM as Record<string, number>)[b]) / AU_KM : 0;
+  });
+  const skipApproachBelow = SCREEN_APPROACH_FACTOR * maxAu;
+  const planet = new Float64Array(6 * nb);
+  const st6 = new Float64Array(6);
+  const rhoPrev = new Float64Array(n * nb), vrelPrev = new Float64Array(n * nb);
+  const skipA = new Uint8Array(bodies.length), skipI = new Uint8Array(impactBodies.length);
+  const loadPlanets = (t: number) => {
+    for (let j = 0; j < nb; j++) {
+      shared.stateInto(screen[j], t, st6);
+      planet.set(st6, 6 * j);
+    }
+  };
+  const X = integ.x, V = integ.v;
+  const distances = (i: number, rhoOut: Float64Array, vrelOut: Float64Array) => {
+    const o = 3 * i;
+    const x = X[o], y = X[o + 1], z = X[o + 2], vx = V[o], vy = V[o + 1], vz = V[o + 2];
+    for (let j = 0; j < nb; j++) {
+      const p = 6 * j;
+      const dx = x - planet[p], dy = y - planet[p + 1], dz = z - planet[p + 2];
+      const du = vx - planet[p + 3], dv = vy - planet[p + 4], dw = vz - planet[p + 5];
+      rhoOut[i * nb + j] = Math.sqrt(dx * dx + dy * dy + dz * dz);
+      vrelOut[i * nb + j] = Math.sqrt(du * du + dv * dv + dw * dw);
+    }
+  };
+  loadPlanets(from);
+  for (let i = 0; i < n; i++) distances(i, rhoPrev, vrelPrev);
+  const rhoNow = new Float64Array(n * nb), vrelNow = new Float64Array(n * nb);
+
   const out6 = new Float64Array(6);
   let remaining = n;
   let done = from === until;
@@ -186,13 +239,27 @@ export function integrateBatch(opts: BatchOptions): BatchResult {
     const { t0, t1 } = integ.lastStep;
     const stepEnd = done ? until : t1;
     lastT1 = stepEnd;
+    const span = Math.abs(stepEnd - t0);
+    loadPlanets(stepEnd);
     for (let i = 0; i < n; i++) {
       if (active[i] === 0) continue;
+      distances(i, rhoNow, vrelNow);
+      for (let j = 0; j < nb; j++) {
+        const r0 = rhoPrev[i * nb + j], r1 = rhoNow[i * nb + j];
+        const vmax = SCREEN_SPEED_FACTOR * Math.max(vrelPrev[i * nb + j], vrelNow[i * nb + j]) + SCREEN_SPEED_MARGIN_AU_D;
+        // Lower bound of the distance over the step: rho(t) >= rho0 - vmax |t - t0| and >= rho1 - vmax |t1 - t|.
+        const lower = Math.min(r0, r1, 0.5 * (r0 + r1 - vmax * span));
+        const ja = approachOf[j];
+        if (ja >= 0) skipA[ja] = lower > skipApproachBelow ? 1 : 0;
+        const ji = impactOf[j];
+        // ImpactMonitor.check does nothing for a body that is at least 3 radii away at both ends of the step.
+        if (ji >= 0) skipI[ji] = Math.min(r0, r1) >= impactRadius3[j] ? 1 : 0;
+      }
       const im = impactMon[i];
-      const hit = im ? im.check(t0, stepEnd, xView[i], stateAt[i]) : null;
+      const hit = im ? im.check(t0, stepEnd, xView[i], stateAt[i], skipI) : null;
       const end = hit ? hit.tdbDays : stepEnd;
       const mon = approachMon[i];
-      mon.onStep(t0, end, stateAt[i]);
+      mon.onStep(t0, end, stateAt[i], skipA);
       if (hit) {
         mon.finish(end, stateAt[i], hit);
         stateAt[i](end, out6);
@@ -209,6 +276,8 @@ export function integrateBatch(opts: BatchOptions): BatchResult {
         integ.resetParticle(i, PARK_POSITION, ZERO3);
       }
     }
+    rhoPrev.set(rhoNow);
+    vrelPrev.set(vrelNow);
     if (remaining === 0) break;
   }
   for (let i = 0; i < n; i++) {

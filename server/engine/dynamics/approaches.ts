@@ -70,6 +70,11 @@ export type FindCloseApproachesOptions = {
 const AUD_TO_KMS = AU_KM / DAY_S;
 /** Time tolerance of the minimum search: 1e-6 d = 0.0864 s. */
 const T_TOL_DAYS = 1e-6;
+/**
+ * A step is scanned at its ends only when |v_rel| |dt| < STRAIGHT rho at its start: the relative path then turns
+ * by less than ~STRAIGHT radians (less for a hyperbolic flyby), so there is at most one minimum in the step.
+ */
+const STRAIGHT = 0.05;
 
 /**
  * Close-approach monitor for ONE trajectory, fed step by step (after every accepted integration step) with the
@@ -84,9 +89,14 @@ export class ApproachMonitor {
   /** Per body: f and rho at the previous sample (in integration order). */
   private readonly prevF: Float64Array;
   private readonly prevRho: Float64Array;
+  /** Per body: relative speed at the previous sample (AU/d). */
+  private readonly prevVrel: Float64Array;
+  /** Per body: 1 when the previous step was skipped (prevF, prevRho unknown). */
+  private readonly stale: Uint8Array;
   private first = true;
   private lastRho = 0;
   private lastF = 0;
+  private lastVrel = 0;
 
   constructor(
     private readonly eph: PlanetEphemeris,
@@ -98,6 +108,8 @@ export class ApproachMonitor {
     this.idx = bodies.map(bodyIndex);
     this.prevF = new Float64Array(bodies.length);
     this.prevRho = new Float64Array(bodies.length);
+    this.stale = new Uint8Array(bodies.length);
+    this.prevVrel = new Float64Array(bodies.length).fill(Infinity);
   }
 
   /** Sets lastRho, lastF for body j at t (no allocation). */
@@ -109,6 +121,7 @@ export class ApproachMonitor {
     const du = qs[3] - ps[3], dv = qs[4] - ps[4], dw = qs[5] - ps[5];
     this.lastRho = Math.sqrt(dx * dx + dy * dy + dz * dz);
     this.lastF = dx * du + dy * dv + dz * dw;
+    this.lastVrel = Math.sqrt(du * du + dv * dv + dw * dw);
   }
 
   private fAt(j: number, t: number, stateAt: (t: number, out: Float64Array) => void): number {
@@ -142,23 +155,47 @@ export class ApproachMonitor {
     });
   }
 
-  /** Scan one accepted step [t0, t1] (t1 may be truncated at an impact) using its dense output. */
-  onStep(t0: number, t1: number, stateAt: (t: number, out: Float64Array) => void): void {
-    const { bodies, maxAu, dir, prevF, prevRho } = this;
+  /**
+   * Scan one accepted step [t0, t1] (t1 may be truncated at an impact) using its dense output.
+   * `skip` (optional, one flag per body, batches): the caller has shown that body j stays beyond 4 maxAu during
+   * the whole step (so no minimum below maxAu can be in it), and that body is not sampled: its running state is
+   * marked unknown and re-read from the dense output at the start of the next step that is scanned.
+   */
+  onStep(t0: number, t1: number, stateAt: (t: number, out: Float64Array) => void, skip?: Uint8Array): void {
+    const { bodies, maxAu, dir, prevF, prevRho, prevVrel, stale } = this;
     if (this.first) {
       this.first = false;
       for (let j = 0; j < bodies.length; j++) {
+        if (skip !== undefined && skip[j] === 1) continue;
         this.relAt(j, t0, stateAt);
         prevF[j] = this.lastF;
         prevRho[j] = this.lastRho;
+        prevVrel[j] = this.lastVrel;
+        stale[j] = 0;
         // Minimum at the window start: distance increasing (in the integration direction) from the start.
         if (this.lastRho < maxAu && this.lastF * dir > 0) this.record(bodies[j], t0, stateAt, { impact: false, windowEdge: true });
       }
     }
     for (let j = 0; j < bodies.length; j++) {
-      // Sample more finely when the body is near (several minima in one step: Earth + Moon, slow encounters).
+      if (skip !== undefined && skip[j] === 1) {
+        stale[j] = 1;
+        prevRho[j] = Infinity;
+        prevF[j] = 0;
+        continue;
+      }
+      if (stale[j] === 1) {
+        this.relAt(j, t0, stateAt);
+        prevF[j] = this.lastF;
+        prevRho[j] = this.lastRho;
+        prevVrel[j] = this.lastVrel;
+        stale[j] = 0;
+      }
+      // Sample more finely when the body is near (several minima in one step: Earth + Moon, slow encounters),
+      // except when the relative path is nearly straight over the step (relative motion < STRAIGHT x distance: at
+      // most one minimum, so f changes sign at most once and the step's ends bracket it).
       const near = prevRho[j] < 4 * maxAu;
-      const m = near ? 8 : 2;
+      const straight = prevVrel[j] * Math.abs(t1 - t0) < STRAIGHT * prevRho[j];
+      const m = straight ? 1 : near ? 8 : 2;
       let ta = t0;
       for (let k = 1; k <= m; k++) {
         const tb = k === m ? t1 : t0 + ((t1 - t0) * k) / m;
@@ -175,6 +212,7 @@ export class ApproachMonitor {
         }
         prevF[j] = f;
         prevRho[j] = rho;
+        prevVrel[j] = this.lastVrel;
         ta = tb;
       }
     }

@@ -188,14 +188,24 @@ export class ImpactMonitor {
     }
   }
 
-  /** Returns the earliest surface crossing inside [t0, t1] (dense output valid there), else null. */
-  check(t0: number, t1: number, xEnd: ArrayLike<number>, stateAt: (t: number, out: Float64Array) => void): ImpactEvent | null {
+  /**
+   * Returns the earliest surface crossing inside [t0, t1] (dense output valid there), else null.
+   * `skip` (optional, one flag per body, batches): the caller has checked that the distance to body j is at least
+   * 3 radii at both ends of the step, where this method would do nothing for j; j is then not evaluated and its
+   * start distance is re-read from the dense output at the start of the next step that is checked.
+   */
+  check(t0: number, t1: number, xEnd: ArrayLike<number>, stateAt: (t: number, out: Float64Array) => void, skip?: Uint8Array): ImpactEvent | null {
     let best: ImpactEvent | null = null;
     const tolDays = 1e-4 / 86400; // 0.1 ms
     const q = this.q;
     for (let j = 0; j < this.idx.length; j++) {
+      if (skip !== undefined && skip[j] === 1) {
+        this.rhoStart[j] = NaN;
+        continue;
+      }
       const R = this.radiusAu[j];
-      const rho0 = this.rhoStart[j];
+      let rho0 = this.rhoStart[j];
+      if (Number.isNaN(rho0)) rho0 = this.dense(j, t0, stateAt).rho;
       stateAt(t1, q);
       const rho1 = this.rhoAt(j, t1, q);
       this.rhoStart[j] = this.rhoAt(j, t1, xEnd);
