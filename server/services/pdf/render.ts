@@ -484,7 +484,10 @@ function footers(ctx: Ctx): void {
     const y = doc.page.height - PAGE.footerFromBottomPt;
     doc.lineWidth(0.5).strokeColor(COLOR.rule).moveTo(box.x, y - 5).lineTo(box.x + box.width, y - 5).stroke();
     doc.y = y;
-    writeParagraph(doc, fonts, [{ text: `Bulletin ${v.number} v${v.version} · ${v.distributionMarking}` }], { x: box.x, width: box.width * 0.75 }, {
+    // One line only: a marking too long for it is left to the title block.
+    let left: Run[] = [{ text: `Bulletin ${v.number} v${v.version}   ·   ${v.distributionMarking}` }];
+    if (paragraphHeight(doc, left, box.width * 0.75, { size: FONT_SIZE.footer }) > FONT_SIZE.footer * 2) left = [{ text: `Bulletin ${v.number} v${v.version}` }];
+    writeParagraph(doc, fonts, left, { x: box.x, width: box.width * 0.75 }, {
       size: FONT_SIZE.footer,
       color: COLOR.muted,
     });
