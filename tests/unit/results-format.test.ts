@@ -109,3 +109,63 @@ describe('physical quantities', () => {
     expect(formatPalermo(null)).toBe('—');
   });
 });
+
+describe('encounter table exports', async () => {
+  const { csvField, encounterCsv, encounterRows, resultTablesJson } = await import('../../shared/results/table');
+  const { parseAssessment } = await import('../../shared/schemas/assessment');
+  const result = parseAssessment({
+    object: 'TEST-2',
+    analysisDateUtc: '2026-12-01T00:00:00Z',
+    provenance: { inputSha256: 'abc', engineVersion: 'eng 1', ephemeris: 'e', integrator: 'i', tolerance: 1e-9, seed: 7, clones: 1000 },
+    approaches: [
+      {
+        body: 'earth', epochTdbJd: 2464222.75, utc: '2034-09-17T05:58:50.818Z', distanceKm: 26000.5, relativeSpeedKmS: 9.2, vInfinityKmS: 7.35, bPlane: null,
+        impact: false, distanceSigmaKm: null,
+        impactProbability: { linear: 0.0733, monteCarlo: { hits: 0, samples: 1000, estimate: null, ci95: null, upperBound95: 0.002991 }, lov: null },
+        energyMt: { nominal: 45.5, low: 14.4, high: 74.5 }, palermo: 0.82, torino: 3, ratingProbabilitySource: 'linear',
+        methodFlags: ['linear IP 7.33e-2 is above the Monte Carlo 95% upper bound 2.99e-3 (0 hits in 1000)'],
+      },
+    ],
+    otherWindows: [
+      {
+        source: 'monteCarlo', body: 'earth', epochTdbJd: 2466000.5, utc: '2039-07-30T00:00:00Z', vInfinityKmS: 8,
+        impactProbability: { linear: null, monteCarlo: { hits: 12, samples: 1000, estimate: 0.012, ci95: [0.0069, 0.0208], upperBound95: 0.019 }, lov: null },
+        energyMt: { nominal: 50, low: 15, high: 80 }, palermo: -0.5, torino: 4, ratingProbabilitySource: 'monteCarlo',
+      },
+    ],
+    palermoCumulative: 0.9, torinoMax: 4, diameterM: { nominal: 120, low: 100, high: 140 },
+  });
+  const source = { runId: 9, objectDesignation: 'TEST-2', solutionVersion: 3, inputSha256: 'abc', engineVersion: 'eng 1', methods: ['linear', 'mc'] };
+
+  it('quotes CSV fields as RFC 4180 says', () => {
+    // RFC 4180 section 2, rules 6 and 7: fields with commas, quotes or line breaks are quoted; quotes are doubled.
+    expect(csvField('plain')).toBe('plain');
+    expect(csvField('a,b')).toBe('"a,b"');
+    expect(csvField('say "hi"')).toBe('"say ""hi"""');
+    expect(csvField('two\nlines')).toBe('"two\nlines"');
+    expect(csvField(null)).toBe('');
+    expect(csvField(1e-7)).toBe('1e-7');
+  });
+
+  it('writes one row per approach and window with raw numbers and their source', () => {
+    const rows = encounterRows(result);
+    expect(rows.map((r) => [r.kind, r.ipMethod])).toEqual([['approach', 'linear'], ['window', 'Monte Carlo']]);
+    expect([rows[1].ip, rows[1].ipLow95, rows[1].ipHigh95]).toEqual([0.012, 0.0069, 0.0208]);
+    const lines = encounterCsv(result, source).split('\r\n');
+    expect(lines.length).toBe(4); // header, 2 rows, final empty string after the last CRLF
+    expect(lines[3]).toBe('');
+    const header = lines[0].split(',');
+    const row = (i: number) => Object.fromEntries(header.map((h, k) => [h, lines[i].match(/("([^"]|"")*"|[^,]*)(,|$)/g)![k].replace(/,$/, '')]));
+    const a = row(1);
+    expect([a.run_id, a.object, a.solution_version, a.row_kind, a.date_utc]).toEqual(['9', 'TEST-2', '3', 'approach', '2034-09-17T05:58:50.818Z']);
+    expect(Number(a.distance_km)).toBe(26000.5);
+    expect(a.impact_probability_method).toBe('linear');
+    expect(a.ip_monte_carlo_samples).toBe('1000');
+    expect(a.method_flags.startsWith('linear IP 7.33e-2 is above')).toBe(true);
+    const w = row(2);
+    expect([w.row_kind, w.impact_probability, w.impact_probability_low95, w.torino]).toEqual(['window', '0.012', '0.0069', '4']);
+    const json = resultTablesJson(result, source) as { source: typeof source; encounters: unknown[] };
+    expect(json.source.runId).toBe(9);
+    expect(json.encounters).toHaveLength(2);
+  });
+});

@@ -35,7 +35,7 @@ export function DistancePlot({ result, approachIndex, unit, caption }: { result:
         { label: `3σ low (${label})`, stroke: C.sigma3, width: 1, value: (_u, v) => fmt(v) },
         { label: `3σ high (${label})`, stroke: C.sigma3, width: 1, value: (_u, v) => fmt(v) },
         { label: `nominal (${label})`, stroke: C.nominal, width: 2, value: (_u, v) => fmt(v) },
-        { label: `${series.body} surface`, stroke: C.capture, width: 1, dash: [5, 3], value: (_u, v) => fmt(v) },
+        { label: `${series.body.charAt(0).toUpperCase() + series.body.slice(1)} surface`, stroke: C.capture, width: 1, dash: [5, 3], value: (_u, v) => fmt(v) },
       ],
       bands: series.lowKm ? [{ series: [2, 1], fill: C.band }] : [],
       axes: [

@@ -47,12 +47,18 @@ export function EncounterTable({
 }) {
   const rows = encounterRows(result);
   if (rows.length === 0) {
-    return <p className="text-ink-soft">No close approach within the reporting distance in this window (run #{source.runId}, solution v{source.solutionVersion}).</p>;
+    const maxAu = typeof result.provenance.maxAu === 'number' ? result.provenance.maxAu : null;
+    return (
+      <p className="text-ink-soft" data-testid="no-approaches">
+        No close approach{result.provenance.bodies ? ` to ${result.provenance.bodies.join(', ')}` : ''} within the reporting distance
+        {maxAu !== null ? ` (${maxAu} au = ${formatDistance(maxAu * 149_597_870.7, 'km')})` : ''} in this window (run #{source.runId}, solution v{source.solutionVersion}).
+      </p>
+    );
   }
   const from = `run #${source.runId}, ${source.objectDesignation} solution v${source.solutionVersion}`;
   return (
-    <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-      <table className="w-full min-w-[60rem] text-left text-sm" data-testid="encounter-table">
+    <div className="relative overflow-x-auto rounded-lg border border-rule bg-white">
+      <table className="w-full min-w-[56rem] text-left text-sm" data-testid="encounter-table">
         <caption className="caption-bottom px-3 py-2 text-left text-xs text-ink-soft">
           From {from} (solution SHA-256 {source.inputSha256.slice(0, 12)}…), {source.engineVersion ?? 'engine version not recorded'}; methods run: {source.methods.join(', ')}.
           3σ range: closest distance over the linear 3σ b-plane ellipse (0 when it contains the planet's centre). Energy range: envelope of the diameter, albedo and density brackets.
@@ -64,11 +70,10 @@ export function EncounterTable({
             <th scope="col" className={th}>Nominal distance</th>
             <th scope="col" className={th}>3σ range</th>
             <th scope="col" className={th}>Rel. speed<br /><span className="font-normal text-ink-soft">v∞</span></th>
-            <th scope="col" className={th}>Impact probability<br /><span className="font-normal text-ink-soft">95% interval · method</span></th>
+            <th scope="col" className={`${th} min-w-[13rem]`}>Impact probability<br /><span className="font-normal text-ink-soft">95% interval · method</span></th>
             <th scope="col" className={th}>Palermo</th>
             <th scope="col" className={th}>Torino</th>
             <th scope="col" className={th}>Energy (range)</th>
-            <th scope="col" className={th}><span className="sr-only">Plots</span></th>
           </tr>
         </thead>
         <tbody>
@@ -88,6 +93,18 @@ export function EncounterTable({
                 </td>
                 <td className="px-3 py-2">
                   {bodyName(r.body)}
+                  {r.kind === 'approach' && <br />}
+                  {r.kind === 'approach' && (
+                    <button
+                      type="button"
+                      className={`mt-1 rounded border px-2 py-0.5 text-xs ${isSel ? 'border-accent-700 bg-accent-700 text-white' : 'border-rule hover:bg-accent-50'}`}
+                      aria-pressed={isSel}
+                      onClick={() => onSelect(r.index)}
+                    >
+                      {isSel ? 'Plotted' : 'Plot'}
+                      <span className="sr-only"> the {bodyName(r.body)} approach of {formatUtc(r.utc, { seconds: false })}</span>
+                    </button>
+                  )}
                   {r.kind === 'window' && <><br /><span className="text-xs text-ink-soft">sampled window, no nominal approach</span></>}
                 </td>
                 <td className="px-3 py-2 whitespace-nowrap" title={`${r.distanceKm?.toFixed(1)} km (${from})`}>
@@ -118,19 +135,6 @@ export function EncounterTable({
                 <td className="px-3 py-2" title={`Palermo from ${src}`}>{formatPalermo(r.palermo)}</td>
                 <td className="px-3 py-2" title={`Torino from ${src}`}>{formatTorino(r.torino)}</td>
                 <td className="px-3 py-2 whitespace-nowrap">{formatEnergyRange(r.energyMt)}</td>
-                <td className="px-3 py-2">
-                  {r.kind === 'approach' && (
-                    <button
-                      type="button"
-                      className={`rounded border px-2 py-0.5 text-xs ${isSel ? 'border-accent-700 bg-accent-700 text-white' : 'border-rule hover:bg-accent-50'}`}
-                      aria-pressed={isSel}
-                      onClick={() => onSelect(r.index)}
-                    >
-                      {isSel ? 'Plotted' : 'Plot'}
-                      <span className="sr-only"> the {bodyName(r.body)} approach of {formatUtc(r.utc, { seconds: false })}</span>
-                    </button>
-                  )}
-                </td>
               </tr>
             );
           })}

@@ -87,7 +87,7 @@ export function RunResults({ run }: { run: Run }) {
           </div>
           <UnitSwitch value={unit} onChange={setUnit} />
         </div>
-        {cls && !cls.bound && <Notice tone="caution" title="Unbound orbit">{cls.note}{cls.unboundSignificance !== null ? ` (eccentricity ${cls.eccentricity.toFixed(4)}, ${cls.unboundSignificance.toFixed(1)}σ above 1).` : '.'}</Notice>}
+        {cls && !cls.bound && <Notice tone="caution" title="Unbound orbit">{cls.note.charAt(0).toUpperCase() + cls.note.slice(1)}{cls.unboundSignificance !== null ? ` (eccentricity ${cls.eccentricity.toFixed(4)}, ${cls.unboundSignificance.toFixed(1)}σ above 1).` : '.'}</Notice>}
         <EncounterTable result={result} source={source} unit={unit} selected={selected} onSelect={setPicked} />
         <div className="flex flex-wrap items-center gap-2 text-sm">
           <span className="text-ink-soft">Export the table:</span>
@@ -111,7 +111,7 @@ export function RunResults({ run }: { run: Run }) {
             </div>
           </div>
           {exportError && <Notice tone="error">{exportError}</Notice>}
-          <div className="grid gap-6 xl:grid-cols-2">
+          <div className="grid gap-6">
             <div className="rounded-lg border border-rule bg-white p-3">
               <h3 className="mb-2 font-semibold">b-plane</h3>
               <BPlanePlot result={result} approachIndex={selected} unit={unit === 're' ? 're' : 'km'} caption={caption} />
