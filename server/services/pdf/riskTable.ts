@@ -6,6 +6,7 @@
 import {
   describeImpactProbability,
   formatDistance,
+  formatDistanceRange,
   formatEnergyRange,
   formatPalermo,
   formatSpeedKmS,
@@ -18,6 +19,7 @@ import { COLOR } from '../../../templates/pdf/layout';
 import type { TableSpec } from './table';
 import type { Run } from './text';
 
+const WINDOW_SOURCE: Record<string, string> = { monteCarlo: 'MC', lov: 'LOV' };
 const cap = (s: string) => (s ? s[0].toUpperCase() + s.slice(1) : s);
 
 export function riskTableSpec(result: unknown): { table: TableSpec; notes: string[] } {
@@ -36,11 +38,15 @@ export function riskTableSpec(result: unknown): { table: TableSpec; notes: strin
   for (const a of r.approaches) {
     const ip = describeImpactProbability(a.impactProbability, a.ratingProbabilitySource ?? null);
     const ipCell: Run[] = [{ text: ip.text }];
-    if (ip.method) ipCell.push({ text: `\n${ip.method}${ip.methodDetail ? `: ${ip.methodDetail}` : ''}`, color: COLOR.muted });
+    // The method on its own line; the wording of its detail only where it carries numbers (Monte Carlo hits) or a
+    // warning (linear not validated): the rest is the same on every row.
+    if (ip.method) {
+      const detail = ip.methodDetail && (ip.method === 'Monte Carlo' || /NOT/.test(ip.methodDetail)) ? `: ${ip.methodDetail}` : '';
+      ipCell.push({ text: `\n${ip.method}${detail}`, color: /NOT/.test(ip.methodDetail ?? '') ? COLOR.accent : COLOR.muted });
+    }
     const dist: Run[] = [{ text: formatDistance(a.distanceKm, 'km') }, { text: `\n${formatDistance(a.distanceKm, 'ld')}`, color: COLOR.muted }];
     if (a.distanceRangeKm?.threeSigma) {
-      const [lo, hi] = a.distanceRangeKm.threeSigma;
-      dist.push({ text: `\n3σ: ${formatDistance(lo, 'km')} – ${formatDistance(hi, 'km')}`, color: COLOR.muted });
+      dist.push({ text: `\n3σ ${formatDistanceRange(a.distanceRangeKm.threeSigma, 'km')}`, color: COLOR.muted });
     }
     rows.push([
       [{ text: cap(a.body) }],
@@ -56,11 +62,11 @@ export function riskTableSpec(result: unknown): { table: TableSpec; notes: strin
   for (const w of r.otherWindows ?? []) {
     const ip = describeImpactProbability(w.impactProbability, w.ratingProbabilitySource ?? null);
     rows.push([
-      [{ text: cap(w.body) }, { text: `\n${w.source} window`, color: COLOR.muted }],
+      [{ text: cap(w.body) }, { text: `\n${WINDOW_SOURCE[w.source] ?? w.source} window`, color: COLOR.muted }],
       [{ text: formatUtc(w.utc, { seconds: false }).replace(' UTC', '') }],
       [{ text: w.minDistanceKm ? `min ${formatDistance(w.minDistanceKm.min, 'km')}` : '—' }],
       [{ text: formatSpeedKmS(w.vInfinityKmS) }],
-      [{ text: ip.text }, ...(ip.method ? [{ text: `\n${ip.method}`, color: COLOR.muted }] : [])],
+      [{ text: ip.text }, ...(ip.method ? [{ text: `\n${ip.method}${ip.method === 'Monte Carlo' && ip.methodDetail ? `: ${ip.methodDetail}` : ''}`, color: COLOR.muted }] : [])],
       [{ text: formatPalermo(w.palermo) }],
       [{ text: formatTorino(w.torino) }],
       [{ text: formatEnergyRange(w.energyMt) }],
@@ -74,7 +80,7 @@ export function riskTableSpec(result: unknown): { table: TableSpec; notes: strin
   );
   for (const n of r.notes ?? []) notes.push(`Note: ${n}`);
   return {
-    table: { shares: [0.7, 1.05, 1.3, 0.85, 1.55, 0.85, 0.75, 1.1], header, rows, align: ['left', 'left', 'left', 'right', 'left', 'right', 'right', 'left'] },
+    table: { shares: [0.7, 1.0, 1.75, 1.0, 1.4, 0.8, 0.7, 1.0], header, rows, align: ['left', 'left', 'left', 'right', 'left', 'right', 'right', 'left'] },
     notes,
   };
 }
