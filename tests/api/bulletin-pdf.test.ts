@@ -72,7 +72,7 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
       `Earth\\s+2030-02-12\\s+${Math.round(a.distanceKm).toLocaleString('en-US')} km\\s+${a.vInfinityKmS.toFixed(2)} km/s\\s+` +
         `${a.impactProbability.linear.toExponential(1)}\\s+−${Math.abs(a.palermo).toFixed(2)}\\s+${a.torino}\\s+\\d+ Mt`,
     );
-    expect(layout).toMatch(/Body\s+Encounter\s+Nominal\s+V-infinity\s+Impact probability\s+Palermo\s+Torino\s+Impact/);
+    expect(layout).toMatch(/Body\s+Encounter\s+Nominal distance\s+V-infinity\s+Impact\s+Palermo\s+Torino\s+Impact/);
     expect(layout).toMatch(row);
     // plots drawn from the shared SVG renderers (their titles and legends are vector text in the PDF)
     expect(t).toContain('b-plane: X26-KAPPA');
