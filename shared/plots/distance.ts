@@ -165,7 +165,7 @@ export function distanceSvg(result: AssessmentResult, approachIndex: number, opt
     p.push(`<line x1="${n2(box.x)}" y1="${n2(y)}" x2="${n2(box.x + box.w)}" y2="${n2(y)}" stroke="${C.grid}"/>`);
     p.push(`<text x="${n2(box.x - 6)}" y="${n2(y + 4)}" text-anchor="end" fill="${C.text}">${esc(tickLabel(t))}</text>`);
   }
-  p.push(`<text x="${n2(box.x + box.w / 2)}" y="${n2(box.y + box.h + 34)}" text-anchor="middle" fill="${C.text}">hours from the nominal closest approach (JD ${esc(a.epochTdbJd.toFixed(5))} TDB)</text>`);
+  p.push(`<text x="${n2(box.x + box.w / 2)}" y="${n2(box.y + box.h + 34)}" text-anchor="middle" fill="${C.text}">hours from the nominal closest approach (0 h = ${esc(a.utc.slice(0, 19).replace('T', ' '))} UTC = JD ${esc(a.epochTdbJd.toFixed(5))} TDB)</text>`);
   p.push(`<text transform="translate(18 ${n2(box.y + box.h / 2)}) rotate(-90)" text-anchor="middle" fill="${C.text}">distance (${esc(DISTANCE_UNITS[unit].label)})</text>`);
   if (s.lowKm && s.highKm) {
     const up = s.tHours.map((t, i) => `${i === 0 ? 'M' : 'L'}${n2(X(t))} ${n2(Y(conv(s.highKm![i])))}`).join('');

@@ -20,6 +20,8 @@ export type EncounterRow = {
   body: string;
   utc: string;
   epochTdbJd: number;
+  /** 1-sigma of the encounter time from the linear method, seconds (null without it). */
+  timeSigmaSeconds: number | null;
   distanceKm: number | null;
   distance3SigmaKm: [number, number] | null;
   relativeSpeedKmS: number | null;
@@ -57,6 +59,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       body: a.body,
       utc: a.utc,
       epochTdbJd: a.epochTdbJd,
+      timeSigmaSeconds: a.encounterTime?.sigmaSeconds ?? null,
       distanceKm: a.distanceKm,
       distance3SigmaKm: a.distanceRangeKm ? [a.distanceRangeKm.threeSigma[0], a.distanceRangeKm.threeSigma[1]] : null,
       relativeSpeedKmS: a.relativeSpeedKmS,
@@ -91,6 +94,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       body: w.body,
       utc: w.utc,
       epochTdbJd: w.epochTdbJd,
+      timeSigmaSeconds: null,
       distanceKm: w.minDistanceKm ? w.minDistanceKm.median : null,
       distance3SigmaKm: w.minDistanceKm ? [w.minDistanceKm.min, w.minDistanceKm.max] : null,
       relativeSpeedKmS: null,
@@ -130,6 +134,7 @@ const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource) => string | numbe
   ['body', (r) => r.body],
   ['date_utc', (r) => r.utc],
   ['epoch_tdb_jd', (r) => r.epochTdbJd],
+  ['time_sigma_s', (r) => r.timeSigmaSeconds],
   ['distance_km', (r) => r.distanceKm],
   ['distance_3sigma_low_km', (r) => r.distance3SigmaKm?.[0] ?? null],
   ['distance_3sigma_high_km', (r) => r.distance3SigmaKm?.[1] ?? null],

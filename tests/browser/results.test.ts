@@ -144,15 +144,20 @@ describe('run results in the browser', () => {
     // exports: the table as CSV, the b-plane as SVG
     const [csvDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'CSV', exact: true }).click()]);
     const csv = fs.readFileSync((await csvDl.path())!, 'utf8').split('\r\n');
-    expect(csv[0].startsWith('run_id,object,solution_version,solution_sha256,engine_version,row_kind,body,date_utc,epoch_tdb_jd,distance_km')).toBe(true);
+    expect(csv[0].startsWith('run_id,object,solution_version,solution_sha256,engine_version,row_kind,body,date_utc,epoch_tdb_jd,time_sigma_s,distance_km')).toBe(true);
     const cells = csv[1].split(',');
     expect(cells.slice(0, 3)).toEqual([String(runId), 'HSO-26-N4', '2']);
-    expect(Number(cells[9])).toBeGreaterThan(25_990);
-    expect(Number(cells[9])).toBeLessThan(26_010);
+    expect(Number(cells[10])).toBeGreaterThan(25_990);
+    expect(Number(cells[10])).toBeLessThan(26_010);
     const [svgDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'b-plane SVG' }).click()]);
     const svg = fs.readFileSync((await svgDl.path())!, 'utf8');
     expect(svg).toContain('data-role="capture-disk"');
     expect(svg).toContain(`Run #${runId} · HSO-26-N4 solution v2`);
+    const [pngDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'b-plane PNG' }).click()]);
+    const png = fs.readFileSync((await pngDl.path())!);
+    // PNG signature (ISO/IEC 15948, 5.2) and the IHDR size: the 640 x 640 SVG rasterised at scale 2
+    expect(png.subarray(0, 8).toString('hex')).toBe('89504e470d0a1a0a');
+    expect([png.readUInt32BE(16), png.readUInt32BE(20)]).toEqual([1280, 1280]);
     expect(errors).toEqual([]);
     await context.close();
   }, 180_000);

@@ -39,7 +39,7 @@ export function DistancePlot({ result, approachIndex, unit, caption }: { result:
       ],
       bands: series.lowKm ? [{ series: [2, 1], fill: C.band }] : [],
       axes: [
-        { label: 'hours from the nominal closest approach', stroke: C.text },
+        { label: `hours from the nominal closest approach (0 h = ${series.centreUtc.slice(0, 19).replace('T', ' ')} UTC)`, stroke: C.text },
         { label: `distance (${label})`, stroke: C.text, size: 80 },
       ],
     };

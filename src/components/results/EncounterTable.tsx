@@ -9,6 +9,7 @@ import {
   formatExp,
   formatJd,
   formatPalermo,
+  formatSigmaSeconds,
   formatSpeedKmS,
   formatTdbJd,
   formatTorino,
@@ -18,6 +19,19 @@ import {
 import { encounterRows, type EncounterRow, type ResultSource } from '../../../shared/results/table';
 
 const th = 'px-3 py-2 align-bottom font-semibold';
+
+/** "46 Mt (14–74 Mt)" as two lines: the nominal value, then the range. */
+function energyLines(text: string) {
+  const i = text.indexOf(' (');
+  if (i < 0) return text;
+  return (
+    <>
+      {text.slice(0, i)}
+      <br />
+      <span className="text-ink-soft whitespace-nowrap">{text.slice(i + 1)}</span>
+    </>
+  );
+}
 
 /** Every method's figure side by side ("linear 7.3e-2 · LOV 7.1e-2 · MC 12 hits in 1,000"), or null. */
 function allMethods(r: EncounterRow): string | null {
@@ -58,7 +72,7 @@ export function EncounterTable({
   const from = `run #${source.runId}, ${source.objectDesignation} solution v${source.solutionVersion}`;
   return (
     <div className="relative overflow-x-auto rounded-lg border border-rule bg-white">
-      <table className="w-full min-w-[56rem] text-left text-sm" data-testid="encounter-table">
+      <table className="w-full min-w-[52rem] text-left text-sm" data-testid="encounter-table">
         <caption className="caption-bottom px-3 py-2 text-left text-xs text-ink-soft">
           From {from} (solution SHA-256 {source.inputSha256.slice(0, 12)}…), {source.engineVersion ?? 'engine version not recorded'}; methods run: {source.methods.join(', ')}.
           3σ range: closest distance over the linear 3σ b-plane ellipse (0 when it contains the planet's centre). Energy range: envelope of the diameter, albedo and density brackets.
@@ -90,6 +104,12 @@ export function EncounterTable({
                   {formatUtc(r.utc)}
                   <br />
                   <span className="text-ink-soft" title={formatJd(r.epochTdbJd)}>{formatTdbJd(r.epochTdbJd)}</span>
+                  {r.timeSigmaSeconds !== null && (
+                    <>
+                      <br />
+                      <span className="text-xs text-ink-soft" title="1σ of the encounter time, linear method">{formatSigmaSeconds(r.timeSigmaSeconds)} (1σ)</span>
+                    </>
+                  )}
                 </td>
                 <td className="px-3 py-2">
                   {bodyName(r.body)}
@@ -134,7 +154,7 @@ export function EncounterTable({
                 </td>
                 <td className="px-3 py-2" title={`Palermo from ${src}`}>{formatPalermo(r.palermo)}</td>
                 <td className="px-3 py-2" title={`Torino from ${src}`}>{formatTorino(r.torino)}</td>
-                <td className="px-3 py-2 whitespace-nowrap">{formatEnergyRange(r.energyMt)}</td>
+                <td className="px-3 py-2">{energyLines(formatEnergyRange(r.energyMt))}</td>
               </tr>
             );
           })}
