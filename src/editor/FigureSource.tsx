@@ -27,6 +27,8 @@ export interface FigureSource {
   objectId: number | null;
   useFigure(attrs: LinkedFigureAttrs): FigureLookup;
   useRunResult(runId: number): RunResultLookup;
+  /** The object's newest finished run when it is newer than `runId` (drafts only; null otherwise). */
+  useNewerRun(runId: number): number | null;
 }
 
 const EMPTY: FigureSource = {
@@ -34,6 +36,7 @@ const EMPTY: FigureSource = {
   objectId: null,
   useFigure: () => ({ state: 'missing', message: 'No figure source' }),
   useRunResult: () => ({ state: 'missing', message: 'No figure source' }),
+  useNewerRun: () => null,
 };
 
 export const FigureSourceContext = createContext<FigureSource>(EMPTY);

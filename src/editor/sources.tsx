@@ -8,7 +8,7 @@ import type { LinkedFigureAttrs } from '../../shared/bulletins/document';
 import type { FigureSnapshot, FigureStatus } from '../../shared/schemas/bulletins';
 import type { Run } from '../../shared/schemas/runs';
 import { api } from '../api/client';
-import { runKeys } from '../api/runs';
+import { runKeys, useObjectRuns } from '../api/runs';
 import { useAppAbility } from '../auth/useAppAbility';
 import type { FigureLookup, FigureSource, RunResultLookup } from './FigureSource';
 import { previewFigure } from './preview';
@@ -62,6 +62,12 @@ export function useLiveFigureSource(objectId: number, statuses: FigureStatus[], 
       useRunResult(runId: number): RunResultLookup {
         return useRunResultFrom(runId, true, '');
       },
+      useNewerRun(runId: number): number | null {
+        const runs = useObjectRuns(objectId);
+        // newest first: the first finished run is the latest
+        const latest = runs.data?.find((r) => r.status === 'done')?.id ?? null;
+        return editable && latest !== null && latest > runId ? latest : null;
+      },
     }),
     [objectId, statuses, editable],
   );
@@ -81,6 +87,7 @@ export function useFrozenFigureSource(snapshots: FigureSnapshot[]): FigureSource
       useRunResult(runId: number): RunResultLookup {
         return useRunResultFrom(runId, canReadRuns, 'This table or plot is part of the PDF of this version.');
       },
+      useNewerRun: () => null,
     }),
     [snapshots, canReadRuns],
   );

@@ -241,6 +241,7 @@ describe('bulletins in the browser', () => {
           ],
         },
         { type: 'riskTable', attrs: { runId: firstRunId } },
+        { type: 'plot', attrs: { runId: firstRunId, kind: 'bplane', body: 'earth', epochTdbJd: 2464222.75 } },
       ],
     };
     // the figure's epoch is matched to the nearest Earth approach within 30 days (shared/bulletins/document.ts)
@@ -255,7 +256,15 @@ describe('bulletins in the browser', () => {
     const stale = figure.getByTestId('stale-figure');
     expect(await stale.textContent()).toContain(`run #${secondRunId}`);
     await page.getByTestId('risk-table-block').getByTestId('encounter-table').waitFor();
+    // the plot block draws the shared b-plane SVG (capture disk marked data-role="capture-disk")
+    await page.getByTestId('plot-block').locator('svg [data-role="capture-disk"]').waitFor();
+    // embedded blocks of the older run say so too, with one action each
+    await page.getByTestId('risk-table-block').getByTestId('stale-block').waitFor();
+    expect(await page.getByTestId('plot-block').getByTestId('stale-block').count()).toBe(1);
     await screenshot(page, 'bulletin-stale-figure');
+    await page.getByTestId('risk-table-block').getByRole('button', { name: `Show run #${secondRunId} instead` }).click();
+    await page.getByTestId('risk-table-block').getByText(`Close approaches · run #${secondRunId}`).waitFor();
+    expect(await page.getByTestId('risk-table-block').getByTestId('stale-block').count()).toBe(0);
 
     // submitting needs a written reason while a figure is out of date
     await page.getByRole('button', { name: 'Submit for review' }).click();
@@ -299,4 +308,49 @@ describe('bulletins in the browser', () => {
     expect(errors).toEqual([]);
     await context.close();
   }, 240_000);
+
+  it('amending the distributed bulletin and approving again gives version 2 with readable differences', async () => {
+    expect(approvedBulletinId).toBeGreaterThan(0);
+    const a = await signedInPage('analyst');
+    await a.page.goto(`/bulletins/${approvedBulletinId}`);
+    await a.page.getByRole('button', { name: 'Start a new version' }).click();
+    await a.page.getByRole('dialog', { name: 'Start a new version' }).getByRole('button', { name: 'Start a new version' }).click();
+    const editor = a.page.getByTestId('bulletin-editor');
+    await editor.waitFor();
+    await editor.click();
+    await a.page.keyboard.press('Control+End');
+    await a.page.keyboard.press('Enter');
+    await a.page.keyboard.type('Further observations are planned for next month.');
+    await a.page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'saved' && /revision [2-9]/.test(document.querySelector('[data-testid="save-status"]')?.textContent ?? ''));
+    // the previous test made a newer run: the figure is out of date, so the submission needs a written reason
+    await a.page.getByRole('button', { name: 'Submit for review' }).click();
+    const submit = a.page.getByRole('dialog', { name: 'Submit for review' });
+    await submit.getByLabel(/Why submit with these figures/).fill('Distance unchanged to the stated precision by the newer run.');
+    await submit.getByRole('button', { name: 'Submit for review' }).click();
+    await a.page.getByTestId('bulletin-state').filter({ hasText: 'In review' }).first().waitFor();
+    expect(a.errors).toEqual([]);
+    await a.context.close();
+
+    const r = await signedInPage('reviewer');
+    await r.page.goto(`/bulletins/${approvedBulletinId}`);
+    const panel = r.page.getByTestId('review-panel');
+    await panel.waitFor();
+    for (const box of await panel.getByRole('checkbox').all()) await box.check();
+    await panel.getByRole('button', { name: 'Approve and sign off' }).click();
+    await r.page.getByTestId('version-2').waitFor();
+    await r.page.getByRole('link', { name: 'Version 2', exact: true }).click();
+    const diff = r.page.getByTestId('version-diff');
+    await diff.waitFor();
+    // the added sentence is marked as an insertion against version 1; the figure is unchanged
+    expect(await diff.locator('p.border-ok-700').allTextContents()).toEqual(['Added: Further observations are planned for next month.']);
+    expect(await diff.textContent()).toContain('No figure changed (1 unchanged).');
+    // the reason given for the out-of-date figure is kept with the version
+    expect(await r.page.getByText('Distance unchanged to the stated precision by the newer run.').count()).toBe(1);
+    await screenshot(r.page, 'bulletin-version-2-diff');
+    // version 1 is now superseded in the list on the bulletin page
+    await r.page.goto(`/bulletins/${approvedBulletinId}`);
+    expect(await r.page.getByTestId('version-1').getByTestId('bulletin-state').textContent()).toBe('Superseded');
+    expect(r.errors).toEqual([]);
+    await r.context.close();
+  }, 120_000);
 });

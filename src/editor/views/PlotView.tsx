@@ -1,12 +1,12 @@
 // The plot block: a run's b-plane or distance plot around one approach, drawn by the shared SVG renderers
 // (the same pictures the PDF embeds).
-import { NodeViewWrapper, type ReactNodeViewProps } from '@tiptap/react';
+import type { ReactNodeViewProps } from '@tiptap/react';
 import { useMemo } from 'react';
 import { safeParseAssessment } from '../../../shared/schemas/assessment';
 import { bPlaneSvg, distanceSvg } from '../../../shared/plots';
 import { findApproachIndex } from '../approach';
 import { useFigureSource } from '../FigureSource';
-import { EmbedFrame } from './RiskTableView';
+import { EmbedFrame, NewerRunNote } from './RiskTableView';
 
 export function PlotSvg({ result, kind, body, epochTdbJd }: { result: Record<string, unknown>; kind: string; body: string; epochTdbJd: number }) {
   const svg = useMemo(() => {
@@ -25,14 +25,15 @@ export function PlotSvg({ result, kind, body, epochTdbJd }: { result: Record<str
   return <div className="mx-auto max-w-2xl [&>svg]:h-auto [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: svg.svg }} />;
 }
 
-export function PlotView({ node, selected }: ReactNodeViewProps) {
+export function PlotView({ node, selected, updateAttributes }: ReactNodeViewProps) {
   const { runId, kind, body, epochTdbJd } = node.attrs as { runId: number; kind: string; body: string; epochTdbJd: number };
   const lookup = useFigureSource().useRunResult(Number(runId));
   const title = `${kind === 'bplane' ? 'b-plane' : 'Distance'} plot · ${body} · run #${runId}`;
   return (
     <EmbedFrame title={title} selected={selected} testId="plot-block">
+      <NewerRunNote runId={Number(runId)} onRebind={(newer) => updateAttributes({ runId: newer })} />
       {lookup.state === 'loading' && <p className="text-sm text-ink-soft">Loading run #{runId}…</p>}
-      {lookup.state === 'missing' && <p className="text-sm text-danger-700">{lookup.message}</p>}
+      {lookup.state === 'missing' && <p className="text-sm text-ink-soft">{lookup.message}</p>}
       {lookup.state === 'ok' && <PlotSvg result={lookup.result} kind={kind} body={body} epochTdbJd={Number(epochTdbJd)} />}
     </EmbedFrame>
   );

@@ -10,6 +10,20 @@ import { resultSource } from '../../components/results/RunResults';
 import { UnitSwitch } from '../../components/results/UnitSwitch';
 import { useFigureSource } from '../FigureSource';
 
+/** "A newer run exists" with one action to rebind the block to it (drafts only). */
+export function NewerRunNote({ runId, onRebind }: { runId: number; onRebind: (newer: number) => void }) {
+  const newer = useFigureSource().useNewerRun(runId);
+  if (newer === null) return null;
+  return (
+    <p className="mb-2 flex flex-wrap items-center gap-2 rounded border border-signal-200 bg-signal-50 px-2 py-1 text-xs text-signal-700" data-testid="stale-block">
+      <span className="font-semibold">Out of date:</span> run #{newer} of this object is newer.
+      <button type="button" className="rounded border border-signal-200 bg-white px-1.5 font-medium text-accent-700 hover:bg-accent-50" onClick={() => onRebind(newer)}>
+        Show run #{newer} instead
+      </button>
+    </p>
+  );
+}
+
 export function EmbedFrame({ title, selected, children, testId, tools }: { title: string; selected: boolean; children: React.ReactNode; testId: string; tools?: React.ReactNode }) {
   return (
     <NodeViewWrapper
@@ -34,7 +48,7 @@ function EmbeddedTable({ run, result, unit }: { run: Run; result: Record<string,
   return <EncounterTable result={parsed.value} source={resultSource(run, parsed.value)} unit={unit} selected={null} onSelect={() => undefined} />;
 }
 
-export function RiskTableView({ node, selected }: ReactNodeViewProps) {
+export function RiskTableView({ node, selected, updateAttributes }: ReactNodeViewProps) {
   const runId = Number(node.attrs.runId);
   const lookup = useFigureSource().useRunResult(runId);
   const [unit, setUnit] = useState<DistanceUnit>('km');
@@ -46,6 +60,7 @@ export function RiskTableView({ node, selected }: ReactNodeViewProps) {
       testId="risk-table-block"
       tools={lookup.state === 'ok' ? <UnitSwitch value={unit} onChange={setUnit} name={unitName} /> : undefined}
     >
+      <NewerRunNote runId={runId} onRebind={(newer) => updateAttributes({ runId: newer })} />
       {lookup.state === 'loading' && <p className="text-sm text-ink-soft">Loading run #{runId}…</p>}
       {lookup.state === 'missing' && <p className="text-sm text-ink-soft">{lookup.message}</p>}
       {lookup.state === 'ok' && <EmbeddedTable run={lookup.run} result={lookup.result} unit={unit} />}
