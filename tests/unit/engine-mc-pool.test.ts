@@ -1,7 +1,8 @@
 /**
  * Monte Carlo through the piscina worker pool (server/engine/jobs): workers run the TypeScript entry through tsx.
  * Issue 4 items 3, 5 and 10: identical results for a given seed with 1 and 2 workers (and in-process); progress
- * events monotonic and ending at the total; cancellation through an AbortSignal stops the run and the pool.
+ * events monotonic and ending at the total; cancellation through an AbortSignal stops the run and the pool; the
+ * workers receive the run's ephemeris cache as shared memory and get the same numbers from it.
  * Synthetic invented orbit (tests/unit/engine-mc-cases.ts): an Earth encounter 60 days after the epoch with a
  * capture-disk-sized spread, so that the windows contain hits and misses.
  */
@@ -55,6 +56,30 @@ const strip = (r: Awaited<ReturnType<typeof runMonteCarlo>>) => ({ ...r, wallSec
 beforeAll(() => {
   eph = ChebyshevEphemeris.build(T0 - 1, UNTIL + 1);
   c = neaCase(eph, { startTdbDays: T0, encounterTdbDays: T0 + 60, missKm: 7000, a: 1.5, e: 0.4, incDeg: 10, leadDays: 2 });
+});
+
+describe('ephemeris cache shared with the workers', () => {
+  it('exportShared puts the coefficients in a SharedArrayBuffer and fromData returns the same numbers', () => {
+    const d = eph.exportShared();
+    expect(d.coeffs.buffer).toBeInstanceOf(SharedArrayBuffer);
+    expect(eph.exportShared()).toBe(d); // copied once per ephemeris
+    // A structured clone (what postMessage does) shares the memory rather than copying it.
+    const posted = structuredClone(d);
+    expect(posted.coeffs.buffer).toBeInstanceOf(SharedArrayBuffer);
+    const copy = ChebyshevEphemeris.fromData(posted);
+    const a = new Float64Array(27), b = new Float64Array(27), sa = new Float64Array(6), sb = new Float64Array(6);
+    for (let t = T0 - 1; t <= UNTIL + 1; t += 3.7) {
+      eph.positionsInto(t, a);
+      copy.positionsInto(t, b);
+      expect(Array.from(b)).toEqual(Array.from(a));
+      for (const body of [2, 3, 4]) {
+        eph.stateInto(body, t, sa);
+        copy.stateInto(body, t, sb);
+        expect(Array.from(sb)).toEqual(Array.from(sa));
+      }
+    }
+    expect(() => ChebyshevEphemeris.fromData({ ...posted, degree: posted.degree.slice(1) })).toThrow(/inconsistent/);
+  });
 });
 
 describe('Monte Carlo worker pool', () => {

@@ -6,7 +6,7 @@
  *   offending eigenvalue and direction, repaired only when opts.repairCovariance is set); clone k uses
  *   RandomStream.forClone(seed, k), so it depends only on (seed, k).
  * - Each clone is propagated with the full dynamics (n-body, GR, non-grav) from the solution epoch to untilTdbDays
- *   with the run's shared ephemeris cache, in lockstep batches (assess/batch.ts) of `batchSize` clones; a task is
+ *   with the run's shared ephemeris cache (posted to the workers as shared memory, not rebuilt there), in lockstep batches (assess/batch.ts) of `batchSize` clones; a task is
  *   one batch (a contiguous block of clone indices, cut at multiples of batchSize whatever the number of workers).
  * - Streamed: a task returns only the clones' approaches (compact records), never their states; memory is bounded
  *   by the number of approaches.
@@ -16,6 +16,7 @@
  *   hits / samples with binomialEstimate (Wilson 95%; zero hits reported as the one-sided upper bound, not 0).
  * Results are identical for a given seed whatever the number of workers (tested).
  */
+import { setMaxListeners } from 'node:events';
 import { ChebyshevEphemeris, EPHEMERIS_BODIES } from '../ephemeris';
 import { validateCovariance, type CovarianceRepair } from '../linalg/covariance';
 import { MC_PARAMETERS, runMcTask, type McTask, type McTaskResult } from '../jobs/mc-task';
@@ -124,9 +125,11 @@ export async function runMonteCarlo(solution: OrbitSolution, opts: McOptions, ho
   const span: [number, number] = [eph.startTdbDays, eph.endTdbDays];
   const { template, repair } = prepareMcTasks(solution, opts, span);
 
-  const tasks: McTask[] = [];
-  for (let k = 0; k < N; k += batchSize) tasks.push({ ...template, cloneStart: k, cloneEnd: Math.min(N, k + batchSize) });
   const workers = opts.pool ? opts.pool.threads : (opts.workers ?? defaultWorkerCount());
+  // Workers receive the run's cache as shared memory instead of rebuilding it (jobs/mc-worker.ts).
+  const shared = workers > 0 ? eph.exportShared() : undefined;
+  const tasks: McTask[] = [];
+  for (let k = 0; k < N; k += batchSize) tasks.push({ ...template, ephemeris: shared, cloneStart: k, cloneEnd: Math.min(N, k + batchSize) });
   const t0 = performance.now();
   let done = 0;
   const progress = (): McProgress => {
@@ -149,6 +152,8 @@ export async function runMonteCarlo(solution: OrbitSolution, opts: McOptions, ho
   } else {
     const pool = opts.pool ?? new McPool(workers);
     const inner = new AbortController();
+    // The pool listens on the signal once per queued task.
+    setMaxListeners(tasks.length + 16, inner.signal);
     const onAbort = () => inner.abort();
     signal?.addEventListener('abort', onAbort, { once: true });
     try {

@@ -188,6 +188,23 @@ function chunkCoefficients(i: number, chunk: number, useMemo: boolean): Float64A
   return c;
 }
 
+/** Exported cache (ChebyshevEphemeris.exportShared / fromData): plain data that can be posted to a worker thread. */
+export type ChebyshevEphemerisData = {
+  /** Unique per exported ephemeris (workers keep the last one they were given, keyed by id). */
+  id: string;
+  startTdbDays: number;
+  endTdbDays: number;
+  /** All coefficients, in a SharedArrayBuffer. */
+  coeffs: Float64Array;
+  offset: number[];
+  degree: number[];
+  nGranules: number[];
+  origin: number[];
+  granuleDays: number[];
+};
+
+let exportCounter = 0;
+
 export class ChebyshevEphemeris {
   readonly startTdbDays: number;
   readonly endTdbDays: number;
@@ -204,10 +221,26 @@ export class ChebyshevEphemeris {
   /** wall time of the build, ms */
   readonly buildMs: number;
 
-  private constructor(start: number, end: number, useMemo: boolean) {
+  /** The exported form (shared coefficients), made once on the first exportShared(). */
+  private shared: ChebyshevEphemerisData | null = null;
+
+  private constructor(start: number, end: number, useMemo: boolean, data?: ChebyshevEphemerisData) {
     const t0 = performance.now();
     this.startTdbDays = start;
     this.endTdbDays = end;
+    if (data) {
+      this.coeffs = data.coeffs;
+      this.offset = Int32Array.from(data.offset);
+      this.degree = Int32Array.from(data.degree);
+      this.nGranules = Int32Array.from(data.nGranules);
+      this.origin = Float64Array.from(data.origin);
+      this.granuleDays = Float64Array.from(data.granuleDays);
+      this.invGranuleDays = this.granuleDays.map((g) => 1 / g);
+      this.scratch = new Float64Array(64);
+      this.shared = data;
+      this.buildMs = performance.now() - t0;
+      return;
+    }
     this.offset = new Int32Array(NBODY + 1);
     this.degree = new Int32Array(NBODY);
     this.nGranules = new Int32Array(NBODY);
@@ -257,6 +290,41 @@ export class ChebyshevEphemeris {
       throw new RangeError(`ChebyshevEphemeris.build needs finite start < end, got ${startTdbDays}, ${endTdbDays}`);
     }
     return new ChebyshevEphemeris(startTdbDays, endTdbDays, opts?.useMemo ?? true);
+  }
+
+  /**
+   * The cache in a form another thread can use without rebuilding it (worker threads of a Monte Carlo run): the
+   * coefficients in a SharedArrayBuffer (copied there once per ephemeris, then shared, not copied, when posted to a
+   * worker) and the small index tables. ChebyshevEphemeris.fromData(d) in the worker gives an ephemeris that returns
+   * the same numbers (same coefficients, same code).
+   */
+  exportShared(): ChebyshevEphemerisData {
+    if (!this.shared) {
+      const coeffs = new Float64Array(new SharedArrayBuffer(this.coeffs.byteLength));
+      coeffs.set(this.coeffs);
+      this.shared = {
+        id: `${this.startTdbDays}:${this.endTdbDays}:${coeffs.length}:${(exportCounter++).toString(36)}:${Math.random().toString(36).slice(2)}`,
+        startTdbDays: this.startTdbDays,
+        endTdbDays: this.endTdbDays,
+        coeffs,
+        offset: Array.from(this.offset),
+        degree: Array.from(this.degree),
+        nGranules: Array.from(this.nGranules),
+        origin: Array.from(this.origin),
+        granuleDays: Array.from(this.granuleDays),
+      };
+    }
+    return this.shared;
+  }
+
+  /** An ephemeris over exported data (see exportShared); checks the table sizes against the coefficients. */
+  static fromData(d: ChebyshevEphemerisData): ChebyshevEphemeris {
+    const ok =
+      d.offset.length === NBODY + 1 && d.degree.length === NBODY && d.nGranules.length === NBODY && d.origin.length === NBODY &&
+      d.granuleDays.length === NBODY && d.offset[NBODY] === d.coeffs.length &&
+      d.degree.every((deg, i) => d.offset[i] + d.nGranules[i] * 3 * (deg + 1) === d.offset[i + 1]);
+    if (!ok || !(d.endTdbDays > d.startTdbDays)) throw new RangeError('ChebyshevEphemeris.fromData: inconsistent tables');
+    return new ChebyshevEphemeris(d.startTdbDays, d.endTdbDays, false, d);
   }
 
   /** Empties the process-wide granule memo (tests, benchmarks, or to release memory). */

@@ -15,6 +15,7 @@
 import { integrateBatch } from '../assess/batch';
 import { EPHEMERIS_BODIES, type EphemerisBody } from '../ephemeris';
 import type { NonGravParams, PlanetEphemeris } from '../dynamics/types';
+import type { ChebyshevEphemerisData } from '../ephemeris/chebyshev';
 import { RandomStream } from '../risk/random';
 import { drawGaussian } from '../risk/sampling';
 
@@ -23,8 +24,13 @@ export const MC_PARAMETERS = ['x', 'y', 'z', 'vx', 'vy', 'vz', 'a1', 'a2', 'a3']
 export type McParameter = (typeof MC_PARAMETERS)[number];
 
 export type McTask = {
-  /** Ephemeris span the worker must build (once per run; same granules as the parent's cache). */
+  /** Ephemeris span of the run's cache (a worker builds it only when `ephemeris` is absent). */
   ephemerisSpan: [number, number];
+  /**
+   * The run's ephemeris cache as shared data (ChebyshevEphemeris.exportShared: coefficients in a
+   * SharedArrayBuffer, posted without copying); a worker uses it instead of rebuilding the cache.
+   */
+  ephemeris?: ChebyshevEphemerisData;
   fromTdbDays: number;
   untilTdbDays: number;
   /** Nominal x, y, z, vx, vy, vz, a1, a2, a3. */
