@@ -159,6 +159,8 @@ describe('fonts', () => {
     ]);
     // A character no font has becomes "?" rather than an empty box (U+E000 is a private-use code point).
     expect(fonts.split('regular', 'a\uE000')).toEqual([{ font: 'mw-latin-regular', text: 'a?' }]);
+    // A tab is a space; other control characters are dropped; line breaks are kept for the layout.
+    expect(fonts.split('regular', 'a\tb\u0007c\nd')).toEqual([{ font: 'mw-latin-regular', text: 'a bc\nd' }]);
   });
 });
 

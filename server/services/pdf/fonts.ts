@@ -153,7 +153,10 @@ export class FontSet {
   split(style: FontStyle, text: string): { font: string; text: string }[] {
     const out: { font: string; text: string }[] = [];
     const primary = primaryFont(style);
-    for (const ch of text) {
+    for (const raw of text) {
+      // Tabs and other control characters have no glyph: a tab is a space, the rest are dropped.
+      const ch = raw === '\t' ? ' ' : raw;
+      if (ch !== '\n' && ch !== '\r' && /[\u0000-\u001f\u007f]/.test(ch)) continue;
       const cp = ch.codePointAt(0)!;
       const last = out[out.length - 1];
       let font: string;

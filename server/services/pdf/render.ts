@@ -155,7 +155,8 @@ function list(ctx: Ctx, node: PdfDocNode, box: Box): void {
   for (const item of node.content ?? []) {
     const marker = ordered ? `${counter++}.` : '•';
     doc.font(primaryFont('regular')).fontSize(FONT_SIZE.body);
-    ensureSpace(doc, 2 * doc.currentLineHeight(true));
+    // At least what the item's first paragraph will ask for, so the marker never stays behind on the page before.
+    ensureSpace(doc, 2 * doc.currentLineHeight(true) + 8);
     const y = doc.y;
     doc.fillColor(COLOR.text).text(marker, box.x, y, { width: SPACING.listIndentPt - 3, align: ordered ? 'right' : 'left', lineBreak: false });
     doc.x = inner.x;
