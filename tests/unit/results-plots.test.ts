@@ -184,3 +184,11 @@ describe('hyperbolaDistanceKm', () => {
     expect(hyperbolaDistanceKm(q, vInf, GM_EARTH, -3600)).toBeCloseTo(hyperbolaDistanceKm(q, vInf, GM_EARTH, 3600), 9);
   });
 });
+
+describe('byte-stable output (PDFs hash their content)', () => {
+  it('renders the same bytes for the same input', () => {
+    const r = synthetic();
+    expect(bPlaneSvg(r, 0, { caption: 'c' })).toBe(bPlaneSvg(synthetic(), 0, { caption: 'c' }));
+    expect(distanceSvg(r, 0, { unit: 'ld' })).toBe(distanceSvg(synthetic(), 0, { unit: 'ld' }));
+  });
+});

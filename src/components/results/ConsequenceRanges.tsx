@@ -17,7 +17,7 @@ export function ConsequenceRanges({ result, source }: { result: AssessmentResult
         <dd>{formatTorino(result.torinoMax)}</dd>
         {withEnergy.map((a, i) => (
           <div key={i} className="contents">
-            <dt className="font-medium">Impact energy, {a.body} {formatUtc(a.utc, { seconds: false }).slice(0, 10)}</dt>
+            <dt className="font-medium">Impact energy, {a.body.charAt(0).toUpperCase() + a.body.slice(1)} {formatUtc(a.utc, { seconds: false }).slice(0, 10)}</dt>
             <dd>{formatEnergyRange(a.energyMt)} <span className="text-ink-soft">(v∞ {a.vInfinityKmS?.toFixed(2) ?? '—'} km/s)</span></dd>
           </div>
         ))}

@@ -83,6 +83,7 @@ export function RunResults({ run }: { run: Run }) {
             <p className="text-sm text-ink-soft" data-testid="result-summary">
               Cumulative Palermo {formatPalermo(result.palermoCumulative)} · highest Torino {formatTorino(result.torinoMax)} · analysis date {formatUtc(result.analysisDateUtc, { seconds: false })}
               {result.provenance.windowTdbJd && <> · window {formatTdbJd(result.provenance.windowTdbJd[0]).slice(0, 10)} to {formatTdbJd(result.provenance.windowTdbJd[1]).slice(0, 10)} (TDB)</>}
+              {' '}· run #{run.id}, {run.objectDesignation} solution v{run.solutionVersion}, each approach rated with the method named in its row
             </p>
           </div>
           <UnitSwitch value={unit} onChange={setUnit} />
