@@ -312,6 +312,10 @@ describe('bulletins in the browser', () => {
   it('amending the distributed bulletin and approving again gives version 2 with readable differences', async () => {
     expect(approvedBulletinId).toBeGreaterThan(0);
     const a = await signedInPage('analyst');
+    await a.page.goto('/bulletins');
+    await a.page.getByTestId(`bulletin-row-${approvedBulletinId}`).waitFor();
+    expect(await a.page.getByTestId(`bulletin-row-${approvedBulletinId}`).textContent()).toContain('Distributed');
+    await screenshot(a.page, 'bulletins-list');
     await a.page.goto(`/bulletins/${approvedBulletinId}`);
     await a.page.getByRole('button', { name: 'Start a new version' }).click();
     await a.page.getByRole('dialog', { name: 'Start a new version' }).getByRole('button', { name: 'Start a new version' }).click();

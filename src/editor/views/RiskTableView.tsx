@@ -45,7 +45,13 @@ export function EmbedFrame({ title, selected, children, testId, tools }: { title
 function EmbeddedTable({ run, result, unit }: { run: Run; result: Record<string, unknown>; unit: DistanceUnit }) {
   const parsed = useMemo(() => safeParseAssessment(result), [result]);
   if (!parsed.ok) return <p className="text-sm text-danger-700">The engine result of run #{run.id} could not be read ({parsed.error}).</p>;
-  return <EncounterTable result={parsed.value} source={resultSource(run, parsed.value)} unit={unit} selected={null} onSelect={() => undefined} />;
+  // The table's per-row "Plot" buttons belong to the run page (they pick the plotted approach); a bulletin embeds
+  // plots as their own blocks, so they are hidden here.
+  return (
+    <div className="[&_tbody_button]:hidden">
+      <EncounterTable result={parsed.value} source={resultSource(run, parsed.value)} unit={unit} selected={null} onSelect={() => undefined} />
+    </div>
+  );
 }
 
 export function RiskTableView({ node, selected, updateAttributes }: ReactNodeViewProps) {

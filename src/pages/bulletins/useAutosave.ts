@@ -111,12 +111,22 @@ export function useAutosave(bulletin: Bulletin) {
     setStatus({ kind: 'saved', revision: current.revision });
   }, []);
 
-  useEffect(
-    () => () => {
-      if (timer.current) clearTimeout(timer.current);
-    },
-    [],
-  );
+  // Leaving the page: save what is pending at once (the mutation outlives the component); closing the tab with
+  // unsaved text asks first.
+  useEffect(() => {
+    const warn = (e: BeforeUnloadEvent) => {
+      if (edits.current !== savedEdits.current && !conflicted.current) e.preventDefault();
+    };
+    window.addEventListener('beforeunload', warn);
+    return () => {
+      window.removeEventListener('beforeunload', warn);
+      if (timer.current) {
+        clearTimeout(timer.current);
+        timer.current = null;
+        void run();
+      }
+    };
+  }, [run]);
 
   return { status, change, flush, keepMine, takeTheirs, draft, baseRevision: base };
 }
