@@ -11,6 +11,7 @@ import { closeDb, openDb } from './db/client';
 import { runMigrations } from './db/migrate';
 import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
+import { seedDemoBulletins } from './services/bulletins/demo';
 import { queueDemoRuns } from './services/runs/demoRuns';
 import { createRunner } from './services/runs/runner';
 import { ROLE_LABELS } from '../shared/roles';
@@ -59,6 +60,19 @@ async function main(): Promise<void> {
   if (demoRuns.length) console.log(`Demo assessment runs queued: ${demoRuns.map((id) => `#${id}`).join(', ')} (computed in the background).`);
   const runner = createRunner(db, services.runs);
   runner.start();
+  // Demo bulletins (one approved and distributed, one in review) are made once the demo runs are done.
+  const demoBulletins = setInterval(() => {
+    seedDemoBulletins(services, DEMO_OFFICE.emailDomain)
+      .then((state) => {
+        if (state === 'done') clearInterval(demoBulletins);
+      })
+      .catch((err) => {
+        clearInterval(demoBulletins);
+        console.warn('Demo bulletins could not be made:', err instanceof Error ? err.message : err);
+      });
+  }, 3000);
+  demoBulletins.unref();
+  timers.push(demoBulletins);
 
   const width = Math.max(...DEMO_USERS.map((u) => u.email.length));
   console.log('');

@@ -6,6 +6,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { eq } from 'drizzle-orm';
 import type { Role } from '../../shared/roles';
+import { seedDemoStakeholderLists } from '../services/bulletins/demo';
 import { hashPassword } from '../services/passwords';
 import { OFFICE_NAME_KEY } from '../services/settings';
 import type { Db } from './client';
@@ -51,6 +52,7 @@ export async function seed(db: Db): Promise<{ inserted: number }> {
     inserted += db.insert(users).values({ email: u.email, name: u.name, role: u.role, passwordHash }).onConflictDoNothing().run().changes;
   }
   inserted += seedDemoObjects(db, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
+  inserted += seedDemoStakeholderLists(db, DEMO_OFFICE.emailDomain);
   return { inserted };
 }
 

@@ -1,6 +1,7 @@
 // Outgoing e-mail through nodemailer, with an outbox table in front: a message is stored first (with its
 // attachments), then sent; failures stay pending and are retried by deliverPending() (called on a timer by
-// server/index.ts) with backoff: the first retry may happen at once, then 30 s, 1, 2, 4 ... min, at most 1 h apart.
+// server/index.ts) with backoff: the first retry may happen at once, then 30 s, 1, 2, 4 ... min, at most 1 h apart;
+// short backoffs (up to 5 min) are also retried by a timer of their own when due (after at least 1 s).
 // A row is claimed atomically (conditional UPDATE on `claimed_until`) before it is sent, so two senders (timers,
 // processes) never send the same row at the same time, and a row marked sent is never sent again. Every message
 // carries a Message-ID derived from its outbox id, so a receiving server can drop a repeat after a crash between
@@ -44,6 +45,10 @@ export interface MailService {
 export const MAX_ATTEMPTS = 16;
 /** How long a sender may hold a row before another may take it (an SMTP send with a PDF takes seconds). */
 const CLAIM_MS = 2 * 60_000;
+/** A failed row is retried by a timer of its own when the backoff is at most this long ... */
+const MAX_TIMER_MS = 5 * 60_000;
+/** ... and not sooner than this after the failure. */
+const MIN_RETRY_MS = 1000;
 
 /** Delay before the next attempt after `attempts` failed attempts: 0, 30 s, 1 min, 2 min, ... capped at 1 h. */
 export function retryDelayMs(attempts: number): number {
@@ -59,14 +64,25 @@ export function createMailService(db: Db, transport: Transporter, from: string):
   const inFlight = new Set<number>();
   const domain = /@([^>\s]+)/.exec(from)?.[1] ?? 'tocsin.local';
 
-  async function deliverOne(id: number): Promise<void> {
+  /** Retry a failed row when its backoff has passed (soon retries only; the periodic deliverPending covers the rest). */
+  function scheduleRetry(id: number, delayMs: number): void {
+    if (delayMs > MAX_TIMER_MS) return;
+    const t = setTimeout(() => {
+      deliverOne(id, true).catch(() => undefined);
+    }, Math.max(delayMs, MIN_RETRY_MS));
+    t.unref();
+  }
+
+  async function deliverOne(id: number, dueOnly = false): Promise<void> {
     if (inFlight.has(id)) return;
     const now = Date.now();
-    // Atomic claim: only one sender gets the row.
+    // Atomic claim: only one sender gets the row (and, for a scheduled retry, only once its backoff has passed).
+    const conditions = [eq(mailOutbox.id, id), eq(mailOutbox.status, 'pending'), or(isNull(mailOutbox.claimedUntil), lt(mailOutbox.claimedUntil, new Date(now)))];
+    if (dueOnly) conditions.push(or(isNull(mailOutbox.nextAttemptAt), lte(mailOutbox.nextAttemptAt, new Date(now))));
     const claimed = db
       .update(mailOutbox)
       .set({ claimedUntil: new Date(now + CLAIM_MS) })
-      .where(and(eq(mailOutbox.id, id), eq(mailOutbox.status, 'pending'), or(isNull(mailOutbox.claimedUntil), lt(mailOutbox.claimedUntil, new Date(now)))))
+      .where(and(...conditions))
       .run().changes;
     if (claimed !== 1) return;
     const row = db.select().from(mailOutbox).where(eq(mailOutbox.id, id)).get();
@@ -97,6 +113,7 @@ export function createMailService(db: Db, transport: Transporter, from: string):
         .where(eq(mailOutbox.id, id))
         .run();
       console.warn(`[mail] sending outbox #${id} failed (attempt ${attempts}): ${(err as Error)?.message ?? err}`);
+      if (attempts < MAX_ATTEMPTS) scheduleRetry(id, retryDelayMs(attempts));
     } finally {
       inFlight.delete(id);
     }

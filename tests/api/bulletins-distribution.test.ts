@@ -72,9 +72,13 @@ describe('distribution', () => {
       expect(r.sentAt).toBeNull();
     }
     expect(await srv.mail.messages()).toHaveLength(0);
-    // A second pass while still down fails again, and schedules the next attempt later (backoff).
+    // A second attempt (the retry pass, or the row's own 1 s retry timer, whichever comes first) fails again and
+    // schedules the next attempt 30 s later (backoff); nothing retries it before then.
     await srv.services.mail.deliverPending();
-    const rows = srv.db.select().from(mailOutbox).all().filter((r) => failedOnce.recipients.some((x) => x.email === r.toAddress));
+    const ours = () => srv.db.select().from(mailOutbox).all().filter((r) => failedOnce.recipients.some((x) => x.email === r.toAddress));
+    for (const until = Date.now() + 10_000; !ours().every((r) => r.attempts >= 2 && r.claimedUntil === null) && Date.now() < until; ) await new Promise((r) => setTimeout(r, 50));
+    await srv.services.mail.deliverPending();
+    const rows = ours();
     expect(rows.every((r) => r.status === 'pending' && r.attempts === 2 && r.nextAttemptAt !== null && r.nextAttemptAt.getTime() > Date.now())).toBe(true);
 
     // SMTP back: the retry pass (what the server's timer runs) sends each message once.
@@ -142,8 +146,8 @@ describe('distribution', () => {
 
   it('refuses distribution by roles the workflow does not list, of versions that are not the latest, and to empty lists', async () => {
     const b = await approvedBulletin(as, objectId, run1);
-    const lists = (await as.communications.get('/api/stakeholder-lists')).body.lists;
-    const listId = lists[0].id as number;
+    const lists = (await as.communications.get('/api/stakeholder-lists')).body.lists as { id: number; name: string }[];
+    const listId = lists.find((l) => l.name === 'Coastal liaisons')!.id;
     // Analysts and reviewers have no Distribution create ability (403 from the route table).
     expect((await as.analyst.request('POST', '/api/distributions', { body: { bulletinId: b.id, version: 1, listId } })).status).toBe(403);
     expect((await as.reviewer.request('POST', '/api/distributions', { body: { bulletinId: b.id, version: 1, listId } })).status).toBe(403);
