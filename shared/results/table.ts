@@ -45,7 +45,10 @@ export type EncounterRow = {
   energyMt: { nominal: number | null; low: number | null; high: number | null };
   methodFlags: string[];
   linearValid: boolean | null;
+  /** The nominal orbit reaches the surface at this approach. */
   impact: boolean;
+  /** The minimum is at an end of the window (the true closest approach may lie outside it). */
+  windowEdge: boolean;
 };
 
 /** Every approach, then every window found by Monte Carlo or LOV alone, in time order within each group. */
@@ -83,6 +86,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       methodFlags: a.methodFlags ?? [],
       linearValid: a.linearValidity?.valid ?? null,
       impact: a.impact,
+      windowEdge: a.windowEdge === true,
     };
   });
   (result.otherWindows ?? []).forEach((w, i) => {
@@ -118,6 +122,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       methodFlags: w.methodFlags ?? [],
       linearValid: null,
       impact: false,
+      windowEdge: false,
     });
   });
   return rows;
@@ -155,6 +160,8 @@ const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource) => string | numbe
   ['energy_mt_nominal', (r) => r.energyMt.nominal],
   ['energy_mt_low', (r) => r.energyMt.low],
   ['energy_mt_high', (r) => r.energyMt.high],
+  ['nominal_impact', (r) => String(r.impact)],
+  ['window_edge', (r) => String(r.windowEdge)],
   ['linear_valid', (r) => (r.linearValid === null ? null : String(r.linearValid))],
   ['method_flags', (r) => r.methodFlags.join('; ')],
 ];

@@ -160,6 +160,7 @@ describe('encounter table exports', async () => {
     expect([a.run_id, a.object, a.solution_version, a.row_kind, a.date_utc]).toEqual(['9', 'TEST-2', '3', 'approach', '2034-09-17T05:58:50.818Z']);
     expect(Number(a.distance_km)).toBe(26000.5);
     expect(a.impact_probability_method).toBe('linear');
+    expect([a.nominal_impact, a.window_edge]).toEqual(['false', 'false']);
     expect(a.ip_monte_carlo_samples).toBe('1000');
     expect(a.method_flags.startsWith('linear IP 7.33e-2 is above')).toBe(true);
     const w = row(2);

@@ -130,6 +130,8 @@ export function EncounterTable({
                 <td className="px-3 py-2 whitespace-nowrap" title={`${r.distanceKm?.toFixed(1)} km (${from})`}>
                   {formatDistance(r.distanceKm, unit)}
                   {r.kind === 'window' && <><br /><span className="text-xs text-ink-soft">median of the clones</span></>}
+                  {r.impact && <><br /><span className="rounded bg-danger-50 px-1 text-xs font-semibold text-danger-700">nominal orbit impacts</span></>}
+                  {r.windowEdge && <><br /><span className="text-xs text-signal-700" title="The distance is smallest at an end of the window: the closest approach may lie outside it">at the window edge</span></>}
                 </td>
                 <td className="px-3 py-2 whitespace-nowrap">{formatDistanceRange(r.distance3SigmaKm, unit)}</td>
                 <td className="px-3 py-2 whitespace-nowrap">
