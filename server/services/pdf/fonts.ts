@@ -134,6 +134,14 @@ export class FontSet {
     doc.font(primaryFont('regular'));
   }
 
+  /**
+   * Size factor for a fallback font so its symbols match Merriweather's large x-height (Noto Sans Math's ≈ ≤ ∞ look
+   * a size too small beside it at the same point size; judged on rendered pages).
+   */
+  scale(name: string): number {
+    return name === 'nsm-regular' ? 1.15 : 1;
+  }
+
   /** Ascender of a registered font, in 1/1000 em (pdfkit's unit). */
   ascender(name: string): number {
     return this.ascenders.get(name)!;

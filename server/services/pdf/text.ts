@@ -73,7 +73,7 @@ function writeLine(doc: PDFKit.PDFDocument, fonts: FontSet, runs: Run[], box: Bo
     const pieceSize = p.run.size ?? size;
     doc
       .font(p.font)
-      .fontSize(pieceSize)
+      .fontSize(pieceSize * fonts.scale(p.font))
       .fillColor(p.run.color ?? (p.run.link ? COLOR.link : (opts.color ?? COLOR.text)));
     const o: PDFKit.Mixins.TextOptions = {
       continued: !last,
