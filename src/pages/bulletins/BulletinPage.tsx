@@ -20,11 +20,13 @@ import { DistributeDialog, DistributionsSection } from './DistributionPanel';
 import { DraftEditor, type DraftHandle } from './DraftEditor';
 import { ReviewPanel } from './ReviewPanel';
 
-/** Which actions to offer: the shared workflow table for this role and author, confirmed by the server's answer. */
+/** Which actions to offer: the shared workflow table for this role and author, the CASL ability, and the server's answer. */
 function actionsFor(b: Bulletin, user: { id: number; role: Role } | null, ability: AppAbility): BulletinAction[] {
   if (!user) return [];
   const fromTable = availableActions(b.state, user.role, user.id, b.author?.id ?? -1);
-  return fromTable.filter((a) => b.allowedActions.includes(a) && (a !== 'distribute' || ability.can('create', 'Distribution')));
+  // distribution goes through POST /api/distributions, every other action through POST .../transitions
+  const permitted = (a: BulletinAction) => (a === 'distribute' ? ability.can('create', 'Distribution') : ability.can('transition', 'Bulletin'));
+  return fromTable.filter((a) => b.allowedActions.includes(a) && permitted(a));
 }
 
 function ReadOnlyDraft({ bulletin }: { bulletin: Bulletin }) {

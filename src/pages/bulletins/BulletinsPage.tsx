@@ -103,12 +103,16 @@ export function BulletinsPage() {
                             {b.title}
                           </Link>
                         </td>
-                        <td className="px-3 py-2">{b.objectDesignation}</td>
+                        <td className="px-3 py-2 whitespace-nowrap">{b.objectDesignation}</td>
                         <td className="px-3 py-2">
                           <BulletinStateBadge state={b.state} />
                         </td>
-                        <td className="px-3 py-2 tabular-nums">{b.latestVersion ? `v${b.latestVersion}` : '—'}{b.state === 'draft' || b.state === 'in_review' || b.state === 'changes_requested' ? ` (drafting v${b.draftVersion})` : ''}</td>
-                        <td className="px-3 py-2">{b.author?.name ?? '—'}</td>
+                        <td className="px-3 py-2 whitespace-nowrap tabular-nums">
+                          {[b.latestVersion ? `v${b.latestVersion}` : null, b.state === 'draft' || b.state === 'in_review' || b.state === 'changes_requested' ? `drafting v${b.draftVersion}` : null]
+                            .filter(Boolean)
+                            .join(' · ')}
+                        </td>
+                        <td className="px-3 py-2 whitespace-nowrap">{b.author?.name ?? '—'}</td>
                         <td className="px-3 py-2 whitespace-nowrap">{formatUtc(b.updatedAt, { seconds: false })}</td>
                       </tr>
                     ))}
