@@ -3,7 +3,7 @@
 // one bulletin about the demo asteroid that is approved and distributed, and one draft in review about the comet
 // (or, when the comet's run has no approach to quote, a second one about the asteroid). Every figure is bound to a
 // seeded run; nothing is typed in by hand. Idempotent: a settings key records that the bulletins were made.
-import { and, desc, eq } from 'drizzle-orm';
+import { and, desc, eq, inArray } from 'drizzle-orm';
 import type { BulletinDocument, DocNode, FigureQuantity } from '../../../shared/bulletins/document';
 import { tryExtractFigure } from '../../../shared/bulletins/figures';
 import { safeParseAssessment } from '../../../shared/schemas/assessment';
@@ -79,6 +79,18 @@ function latestDoneRun(db: Db, designation: string): { runId: number; objectId: 
   return { runId: r.id, objectId: obj.id, result: JSON.parse(r.resultJson) };
 }
 
+/** Whether the object has a run queued or running. */
+function openRuns(db: Db, designation: string): boolean {
+  const obj = db.select({ id: trackedObjects.id }).from(trackedObjects).where(eq(trackedObjects.designation, designation)).get();
+  if (!obj) return false;
+  return db
+    .select({ id: assessmentRuns.id })
+    .from(assessmentRuns)
+    .where(and(eq(assessmentRuns.objectId, obj.id), inArray(assessmentRuns.status, ['queued', 'running'])))
+    .limit(1)
+    .all().length > 0;
+}
+
 const text = (t: string): DocNode => ({ type: 'text', text: t });
 const p = (...content: DocNode[]): DocNode => ({ type: 'paragraph', content });
 const h = (t: string): DocNode => ({ type: 'heading', attrs: { level: 2 }, content: [text(t)] });
@@ -136,6 +148,9 @@ export async function seedDemoBulletins(services: Services, emailDomain: string)
   if (db.select().from(settings).where(eq(settings.key, DONE_KEY)).get()) return 'done';
   const nea = latestDoneRun(db, 'HSO-26-N4');
   if (!nea) return 'waiting';
+  // Wait while the comet's run is still being computed (it may give the second bulletin its figures).
+  const comet = latestDoneRun(db, 'HSO-23-C2');
+  if (!comet && openRuns(db, 'HSO-23-C2')) return 'waiting';
   const actor = (role: string): Actor | null => {
     const u = db.select().from(users).where(eq(users.email, `${role}@${emailDomain}`)).get();
     return u ? { id: u.id, role: u.role, name: u.name } : null;
@@ -157,9 +172,10 @@ export async function seedDemoBulletins(services: Services, emailDomain: string)
     if (list) await services.distributions.distribute({ bulletinId: b.id, version: 1, listId: list.id }, comms);
   }
 
-  const comet = latestDoneRun(db, 'HSO-23-C2');
   const second = (comet && demoDocument(comet, 'Comet HSO-23-C2 (Halvard) returns to the inner solar system; this bulletin updates the office on its next pass by the Earth.')) ?? null;
-  const target = second ? { run: comet!, doc: second, title: 'HSO-23-C2 (Halvard): next pass by the Earth' } : neaDoc ? { run: nea, doc: neaDoc, title: 'HSO-26-N4: update after new observations' } : null;
+  const target = second ? { run: comet!, doc: second, title: 'HSO-23-C2 (Halvard): next pass by the Earth' } : neaDoc
+      ? { run: nea, doc: demoDocument(nea, 'Update on HSO-26-N4: observers have re-measured older images; this draft restates the current assessment while the new orbit solution is prepared.') ?? neaDoc, title: 'HSO-26-N4: update after new observations' }
+      : null;
   if (target) {
     const d = services.bulletins.create({ objectId: target.run.objectId, title: target.title, document: target.doc }, analyst);
     services.bulletins.transition(d.id, { action: 'submit' }, analyst);
