@@ -19,6 +19,8 @@ export type EncounterRow = {
   index: number;
   body: string;
   utc: string;
+  /** The UTC is a prediction (future leap seconds unknown; the engine's utcPredicted). */
+  utcPredicted: boolean;
   epochTdbJd: number;
   /** 1-sigma of the encounter time from the linear method, seconds (null without it). */
   timeSigmaSeconds: number | null;
@@ -61,6 +63,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       index: i,
       body: a.body,
       utc: a.utc,
+      utcPredicted: a.utcPredicted === true,
       epochTdbJd: a.epochTdbJd,
       timeSigmaSeconds: a.encounterTime?.sigmaSeconds ?? null,
       distanceKm: a.distanceKm,
@@ -97,6 +100,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       index: i,
       body: w.body,
       utc: w.utc,
+      utcPredicted: true,
       epochTdbJd: w.epochTdbJd,
       timeSigmaSeconds: null,
       distanceKm: w.minDistanceKm ? w.minDistanceKm.median : null,

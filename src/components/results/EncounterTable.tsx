@@ -75,6 +75,7 @@ export function EncounterTable({
       <table className="w-full min-w-[52rem] text-left text-sm" data-testid="encounter-table">
         <caption className="caption-bottom px-3 py-2 text-left text-xs text-ink-soft">
           From {from} (solution SHA-256 {source.inputSha256.slice(0, 12)}…), {source.engineVersion ?? 'engine version not recorded'}; methods run: {source.methods.join(', ')}.
+          {rows.some((r) => r.utcPredicted) && <>† UTC of a future date assumes no further leap seconds (TDB is exact). </>}
           3σ range: closest distance over the linear 3σ b-plane ellipse (0 when it contains the planet's centre). Energy range: envelope of the diameter, albedo and density brackets.
         </caption>
         <thead className="bg-accent-50">
@@ -102,6 +103,7 @@ export function EncounterTable({
               >
                 <td className="px-3 py-2 whitespace-nowrap">
                   {formatUtc(r.utc)}
+                  {r.utcPredicted && <sup title="Predicted UTC: assumes no leap second after the last one announced">†</sup>}
                   <br />
                   <span className="text-ink-soft" title={formatJd(r.epochTdbJd)}>{formatTdbJd(r.epochTdbJd)}</span>
                   {r.timeSigmaSeconds !== null && (
