@@ -357,4 +357,45 @@ describe('bulletins in the browser', () => {
     expect(r.errors).toEqual([]);
     await r.context.close();
   }, 120_000);
+
+  it('a reviewer requests changes with a comment; the author sees it and revises; on a phone the editor still fits', async () => {
+    const a = await signedInPage('analyst');
+    const created = await apiJson(a.page, 'POST', '/api/bulletins', {
+      objectId: objectIdOfN4,
+      title: 'Draft for a change request',
+      document: { type: 'doc', content: [{ type: 'paragraph', content: [{ type: 'text', text: 'A first statement without figures.' }] }] },
+    });
+    await a.page.goto(`/bulletins/${created.id}`);
+    await a.page.getByRole('button', { name: 'Submit for review' }).click();
+    await a.page.getByRole('dialog', { name: 'Submit for review' }).getByRole('button', { name: 'Submit for review' }).click();
+    await a.page.getByTestId('bulletin-state').filter({ hasText: 'In review' }).first().waitFor();
+
+    const r = await signedInPage('reviewer');
+    await r.page.goto(`/bulletins/${created.id}`);
+    const panel = r.page.getByTestId('review-panel');
+    await panel.waitFor();
+    // requesting changes without saying what is refused in the form, nothing is sent
+    await panel.getByRole('button', { name: 'Request changes' }).click();
+    await panel.getByText('Write what should change before requesting changes.').waitFor();
+    await panel.getByLabel('Comment').fill('Add the miss distance as a linked figure.');
+    await panel.getByRole('button', { name: 'Request changes' }).click();
+    await r.page.getByTestId('bulletin-state').filter({ hasText: 'Changes requested' }).first().waitFor();
+    expect(r.errors).toEqual([]);
+    await r.context.close();
+
+    await a.page.reload();
+    await a.page.getByText('Add the miss distance as a linked figure.').first().waitFor();
+    await a.page.getByRole('button', { name: 'Revise' }).click();
+    await a.page.getByRole('dialog', { name: 'Revise' }).getByRole('button', { name: 'Revise' }).click();
+    await a.page.getByTestId('bulletin-editor').waitFor();
+    expect(await a.page.getByTestId('bulletin-state').first().textContent()).toBe('Draft');
+    await a.page.setViewportSize({ width: 390, height: 844 });
+    await a.page.getByTestId('bulletin-editor').click();
+    await screenshot(a.page, 'bulletin-draft-phone');
+    // nothing wider than the screen but the editor's own scrolling parts
+    const overflow = await a.page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    expect(overflow).toBeLessThanOrEqual(0);
+    expect(a.errors).toEqual([]);
+    await a.context.close();
+  }, 120_000);
 });
