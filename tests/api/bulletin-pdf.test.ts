@@ -81,7 +81,14 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
     // sign-off
     expect(t).toContain(`Approved by ${version.signOff.reviewer.name} on 2026-11-30 14:05 UTC`);
     expect(t).toContain(version.signOff.comment!);
-    for (const c of version.signOff.confirmedFigures) expect(t).toContain(`[${c.index + 1}]`);
+    // each confirmed figure with its run, the run number right after the value (no gap after an en dash: pdfkit's
+    // word-by-word line measure is corrected in text.ts)
+    for (const c of version.signOff.confirmedFigures) {
+      const f = version.figures.find((x) => x.index === c.index)!;
+      expect(t).toContain(`[${c.index + 1}]`);
+      expect(t).toContain(`${f.value.text}, run ${c.runId}`);
+    }
+    expect(version.figures.some((f) => f.value.text.includes('–') && version.signOff.confirmedFigures.some((c) => c.index === f.index))).toBe(true);
   });
 
   it('has a footer with the version hash and "page x of y" on every page', async () => {

@@ -22,7 +22,7 @@ type PdfDocNode = DocNode;
 import { drawPlot } from './plots';
 import { riskTableSpec } from './riskTable';
 import { drawTable } from './table';
-import { paragraphHeight, writeParagraph, type Box, type Run } from './text';
+import { measureLinesWhole, paragraphHeight, writeParagraph, type Box, type Run } from './text';
 
 type Ctx = {
   doc: PDFKit.PDFDocument;
@@ -540,6 +540,7 @@ export async function renderBulletinPdfImpl(v: BulletinVersionForPdf): Promise<B
     doc.on('error', reject);
   });
 
+  measureLinesWhole(doc);
   const fonts = new FontSet(doc);
   const ctx: Ctx = { doc, fonts, version: v, figureIndex: 0, shown: [] };
   doc.x = doc.page.margins.left;

@@ -29,6 +29,28 @@ export type ParagraphOptions = {
   indent?: number;
 };
 
+type LineFn = (text: string, options: { textWidth?: number; align?: string; wordSpacing?: number; features?: unknown }, wrapper?: unknown) => void;
+
+/**
+ * pdfkit 0.20's line wrapper measures a line as the sum of its words' widths, each word measured alone, so kerning
+ * across word and break boundaries is lost: "(100–140 m)" (a break after the en dash, and Merriweather kerns the
+ * dash with digits by several points) is measured wider than it is drawn, and the next "continued" piece starts
+ * after a visible gap. Re-measure each emitted line as a whole before pdfkit uses the width (continued position,
+ * right/centre alignment, underline length). Justified lines keep pdfkit's own measure (their word spacing is
+ * derived from it).
+ */
+export function measureLinesWhole(doc: PDFKit.PDFDocument): void {
+  const d = doc as unknown as { _line: LineFn; widthOfString(s: string, o?: unknown): number };
+  const original = d._line;
+  // pdfkit calls the line callback both bound and unbound: use the document itself, not `this`.
+  d._line = function (text, options = {}, wrapper) {
+    if (wrapper && options.align !== 'justify' && typeof options.textWidth === 'number') {
+      options.textWidth = d.widthOfString(String(text).replace(/\n/g, ''), options);
+    }
+    return original.call(d, text, options, wrapper);
+  };
+}
+
 /** Split runs at line breaks ("\n"): pdfkit's continued text mis-places pieces after a newline. */
 export function splitLines(runs: Run[]): Run[][] {
   const lines: Run[][] = [[]];
@@ -104,7 +126,11 @@ export function paragraphHeight(doc: PDFKit.PDFDocument, runs: Run[], width: num
   return lineHeight(doc, runs, width, opts);
 }
 
-function lineHeight(doc: PDFKit.PDFDocument, runs: Run[], width: number, opts: ParagraphOptions): number {
+/** Share of the width a measurement assumes, so runs set partly in (wider) fallback fonts still fit the height. */
+const MEASURE_WIDTH_SHARE = 0.96;
+
+function lineHeight(doc: PDFKit.PDFDocument, runs: Run[], fullWidth: number, opts: ParagraphOptions): number {
+  const width = fullWidth * MEASURE_WIDTH_SHARE;
   const text = runsText(runs);
   const boldShare = runs.filter((r) => r.bold).reduce((a, r) => a + r.text.length, 0) / Math.max(1, text.length);
   doc.font(primaryFont(boldShare > 0.5 ? 'bold' : 'regular')).fontSize(opts.size ?? FONT_SIZE.body);
