@@ -8,6 +8,7 @@ import { ROLES } from '../../shared/roles';
 import { FORCE_MODELS, SOLUTION_SOURCE_KINDS, TRACKED_OBJECT_KINDS } from '../../shared/schemas/objects';
 import { RUN_STATUSES } from '../../shared/schemas/runs';
 import { STAKEHOLDER_KINDS } from '../../shared/schemas/bulletins';
+import { RELEASE_STATES } from '../../shared/releases/workflow';
 
 const nowMs = sql`(cast(unixepoch('subsecond') * 1000 as integer))`;
 
@@ -399,3 +400,94 @@ export type OrbitSolutionRow = typeof orbitSolutions.$inferSelect;
 export type AssessmentRunRow = typeof assessmentRuns.$inferSelect;
 export type BulletinRow = typeof bulletins.$inferSelect;
 export type BulletinVersionRow = typeof bulletinVersions.$inferSelect;
+
+// ---------------------------------------------------------------------------------------------------------------
+// Press releases (issue 7). A release starts from one approved bulletin version: `figuresJson` is a COPY of that
+// version's frozen figure snapshot. `state` follows shared/releases/workflow.ts and only changes by a conditional
+// UPDATE (WHERE state = the state read). `publishAt` (UTC) is the database's record of what is scheduled: the
+// scheduler (server/services/releases/scheduler.ts) is re-armed from it on every start and publishes a release by
+// the conditional UPDATE scheduled -> published, so each release is published exactly once.
+
+export const releases = sqliteTable(
+  'releases',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    number: text('number').notNull().unique(),
+    bulletinId: integer('bulletin_id')
+      .notNull()
+      .references(() => bulletins.id, { onDelete: 'restrict' }),
+    bulletinVersion: integer('bulletin_version').notNull(),
+    /** SHA-256 of the bulletin version the figures were copied from. */
+    bulletinSha256: text('bulletin_sha256').notNull(),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    title: text('title').notNull(),
+    summary: text('summary').notNull().default(''),
+    state: text('state', { enum: RELEASE_STATES }).notNull().default('draft'),
+    documentJson: text('document_json').notNull(),
+    /** The copied figure snapshot (FigureSnapshot[] of the bulletin version). */
+    figuresJson: text('figures_json').notNull(),
+    revision: integer('revision').notNull().default(1),
+    draftVersion: integer('draft_version').notNull().default(1),
+    latestVersion: integer('latest_version'),
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    updatedById: integer('updated_by_id').references(() => users.id, { onDelete: 'set null' }),
+    /** The scheduled publication instant (UTC); null when not scheduled. */
+    publishAt: integer('publish_at', { mode: 'timestamp_ms' }),
+    /** The IANA zone the time was entered in (display only). */
+    publishTimeZone: text('publish_time_zone'),
+    publishedAt: integer('published_at', { mode: 'timestamp_ms' }),
+    /** The version that was published. */
+    publishedVersion: integer('published_version'),
+    /** publishedAt - publishAt in ms. */
+    lateByMs: integer('late_by_ms'),
+    publishedOnStart: integer('published_on_start', { mode: 'boolean' }).notNull().default(false),
+    /** Public address, set at publication. */
+    slug: text('slug').unique(),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('releases_state_publish_idx').on(t.state, t.publishAt), index('releases_published_idx').on(t.publishedAt)],
+);
+
+/** Locked wordings: written once at approval, never changed. `contentJson` is canonical JSON, `sha256` its hash. */
+export const releaseVersions = sqliteTable(
+  'release_versions',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    releaseId: integer('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'restrict' }),
+    version: integer('version').notNull(),
+    contentJson: text('content_json').notNull(),
+    sha256: text('sha256').notNull(),
+    reviewerId: integer('reviewer_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [uniqueIndex('release_versions_release_version_idx').on(t.releaseId, t.version)],
+);
+
+/** Every transition of a release (incl. the scheduler's publication with how late it was). */
+export const releaseEvents = sqliteTable(
+  'release_events',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    releaseId: integer('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    action: text('action').notNull(),
+    fromState: text('from_state', { enum: RELEASE_STATES }),
+    toState: text('to_state', { enum: RELEASE_STATES }),
+    version: integer('version'),
+    actorId: integer('actor_id').references(() => users.id, { onDelete: 'set null' }),
+    comment: text('comment'),
+    publishAt: integer('publish_at', { mode: 'timestamp_ms' }),
+    detailJson: text('detail_json'),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('release_events_release_idx').on(t.releaseId, t.id)],
+);
+
+export type ReleaseRow = typeof releases.$inferSelect;
+export type ReleaseVersionRow = typeof releaseVersions.$inferSelect;

@@ -236,12 +236,14 @@ export const versionQuerySchema = z.object({ against: z.coerce.number().int().po
 
 // ---------- stakeholder lists ----------
 
-export const STAKEHOLDER_KINDS = ['government', 'partner', 'internal'] as const;
+export const STAKEHOLDER_KINDS = ['government', 'partner', 'internal', 'press'] as const;
 export const stakeholderKindSchema = z.enum(STAKEHOLDER_KINDS);
 export const STAKEHOLDER_KIND_LABELS: Record<(typeof STAKEHOLDER_KINDS)[number], string> = {
   government: 'Government liaisons',
   partner: 'Partner offices',
   internal: 'Internal',
+  /** Press list: receives every press release by e-mail when it is published (issue 7). */
+  press: 'Press',
 };
 
 /** A member is a Tocsin user (incl. liaisons, who then get a briefing in their inbox) or an outside address. */
