@@ -90,6 +90,33 @@ describe('integrateBatch vs propagate (same initial states)', () => {
     }
   });
 
+  it('the per-step screen of the monitors loses no approach: misses just inside and just outside maxAu, Earth and Moon', () => {
+    // Screened monitors (batch.ts) skip a body while a lower bound of the distance over the step exceeds 1.1 maxAu;
+    // minima at 0.045 AU must still be found and those at 0.055 AU must not, exactly as one-object findCloseApproaches
+    // (which scans every step) finds them. Invented geometry: neaCase misses along two perpendicular directions.
+    const maxAu = 0.05;
+    const misses = [0.045, 0.055, 0.049, 0.03].map((au) => au * AU_KM);
+    const cs = misses.map((m, k) => neaCase(eph, { startTdbDays: T0, encounterTdbDays: ENC, missKm: m, a: 1.5, e: 0.4, incDeg: 10, offsetAngleRad: (k * Math.PI) / 2 }));
+    const x = Float64Array.from(cs.flatMap((c) => c.positionAu)), v = Float64Array.from(cs.flatMap((c) => c.velocityAuD));
+    const res = integrateBatch({ ephemeris: eph, fromTdbDays: T0, untilTdbDays: T1, positionsAu: x, velocitiesAuD: v, bodies: ['earth', 'moon'], maxAu, tolerance: 1e-11 });
+    let found = 0;
+    cs.forEach((c, i) => {
+      const ca = findCloseApproaches({ positionAu: c.positionAu, velocityAuD: c.velocityAuD, fromTdbDays: T0, untilTdbDays: T1, bodies: ['earth', 'moon'], maxAu, ephemeris: eph, tolerance: 1e-11 });
+      const mine = res.clones[i].approaches;
+      expect(mine.map((a) => a.body)).toEqual(ca.map((a) => a.body));
+      for (let j = 0; j < ca.length; j++) {
+        expect(Math.abs(mine[j].tdbDays - ca[j].tdbDays) * 86400).toBeLessThan(0.2);
+        expect(Math.abs(mine[j].distanceKm - ca[j].distanceKm)).toBeLessThan(1e-2);
+      }
+      const earth = mine.filter((a) => a.body === 'earth' && !a.windowEdge);
+      // The constructed minimum near ENC is reported exactly when its distance is below maxAu.
+      const near = earth.filter((a) => Math.abs(a.tdbDays - ENC) < 10);
+      expect(near.length).toBe(misses[i] < maxAu * AU_KM ? 1 : 0);
+      found += near.length;
+    });
+    expect(found).toBe(3);
+  });
+
   it('a clone aimed at the Earth stops at the surface at the same time as propagate(); the batch goes on', () => {
     const T = T0 + 120;
     const hitCase = neaCase(eph, { startTdbDays: T0 + 100, encounterTdbDays: T, missKm: 2000, a: 1.5, e: 0.4, incDeg: 10, leadDays: 2 });

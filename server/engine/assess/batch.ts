@@ -17,6 +17,15 @@
  *  - impact detection with dynamics' ImpactMonitor (surface of Earth, Moon, Venus, Mars by default, as propagate());
  *  - close-approach detection with dynamics' ApproachMonitor (f = rho . rhodot sign change, Brent refinement to
  *    1e-6 d, b-plane from bplane.ts), exactly as findCloseApproaches does for one object.
+ * Screen (cost): most clones are far from every monitored body most of the time, so per step and clone the distance
+ * and relative speed to each body are computed at the step's ends from the integrator's state (no dense output; one
+ * planet state per body and step shared by all clones), and
+ *  - a body's approach monitor is not run while a lower bound of the distance over the step exceeds 1.1 maxAu
+ *    (no minimum below maxAu can be in the step; see SCREEN_* below for the bound);
+ *  - a body's impact check is not run while the clone is at least 3 radii away at both ends of the step (exactly
+ *    the case where ImpactMonitor.check does nothing);
+ *  - a monitor whose bodies were all skipped in this and the previous step is not called at all.
+ * A skipped monitor re-reads its running state from the dense output at the start of the next step it scans.
  * A clone that reaches a surface is recorded as a hit at the surface-crossing time and stops there: it is parked
  * far from every body with zero velocity, its accelerations are forced to zero and its integrator polynomial is
  * cleared (Ias15.resetParticle), so it no longer influences the step size; the rest of the batch goes on.
@@ -229,6 +238,8 @@ export function integrateBatch(opts: BatchOptions): BatchResult {
   loadPlanets(from);
   for (let i = 0; i < n; i++) distances(i, rhoPrev, vrelPrev);
   const rhoNow = new Float64Array(n * nb), vrelNow = new Float64Array(n * nb);
+  // Per clone: 1 when every body of the monitor was skipped in the previous step.
+  const quietA = new Uint8Array(n), quietI = new Uint8Array(n);
 
   const out6 = new Float64Array(6);
   let remaining = n;
@@ -244,22 +255,35 @@ export function integrateBatch(opts: BatchOptions): BatchResult {
     for (let i = 0; i < n; i++) {
       if (active[i] === 0) continue;
       distances(i, rhoNow, vrelNow);
-      for (let j = 0; j < nb; j++) {
-        const r0 = rhoPrev[i * nb + j], r1 = rhoNow[i * nb + j];
-        const vmax = SCREEN_SPEED_FACTOR * Math.max(vrelPrev[i * nb + j], vrelNow[i * nb + j]) + SCREEN_SPEED_MARGIN_AU_D;
-        // Lower bound of the distance over the step: rho(t) >= rho0 - vmax |t - t0| and >= rho1 - vmax |t1 - t|.
-        const lower = Math.min(r0, r1, 0.5 * (r0 + r1 - vmax * span));
+      let anyA = 0, anyI = 0;
+      for (let j = 0, q = i * nb; j < nb; j++, q++) {
+        const r0 = rhoPrev[q], r1 = rhoNow[q];
         const ja = approachOf[j];
-        if (ja >= 0) skipA[ja] = lower > skipApproachBelow ? 1 : 0;
+        if (ja >= 0) {
+          const vmax = SCREEN_SPEED_FACTOR * Math.max(vrelPrev[q], vrelNow[q]) + SCREEN_SPEED_MARGIN_AU_D;
+          // Lower bound of the distance over the step: rho(t) >= rho0 - vmax |t - t0| and >= rho1 - vmax |t1 - t|.
+          const lower = Math.min(r0, r1, 0.5 * (r0 + r1 - vmax * span));
+          const sk = lower > skipApproachBelow ? 1 : 0;
+          skipA[ja] = sk;
+          anyA |= 1 - sk;
+        }
         const ji = impactOf[j];
-        // ImpactMonitor.check does nothing for a body that is at least 3 radii away at both ends of the step.
-        if (ji >= 0) skipI[ji] = Math.min(r0, r1) >= impactRadius3[j] ? 1 : 0;
+        if (ji >= 0) {
+          // ImpactMonitor.check does nothing for a body that is at least 3 radii away at both ends of the step.
+          const sk = r0 >= impactRadius3[j] && r1 >= impactRadius3[j] ? 1 : 0;
+          skipI[ji] = sk;
+          anyI |= 1 - sk;
+        }
       }
+      // A monitor whose bodies were all skipped in the previous step too has nothing to update (state already unknown).
       const im = impactMon[i];
-      const hit = im ? im.check(t0, stepEnd, xView[i], stateAt[i], skipI) : null;
+      let hit: ImpactEvent | null = null;
+      if (im && (anyI === 1 || quietI[i] === 0)) hit = im.check(t0, stepEnd, xView[i], stateAt[i], skipI);
+      quietI[i] = anyI === 1 ? 0 : 1;
       const end = hit ? hit.tdbDays : stepEnd;
       const mon = approachMon[i];
-      mon.onStep(t0, end, stateAt[i], skipA);
+      if (anyA === 1 || quietA[i] === 0 || hit) mon.onStep(t0, end, stateAt[i], skipA);
+      quietA[i] = anyA === 1 ? 0 : 1;
       if (hit) {
         mon.finish(end, stateAt[i], hit);
         stateAt[i](end, out6);
