@@ -18,6 +18,8 @@ import { BulletinsPage } from './pages/bulletins/BulletinsPage';
 import { VersionPage } from './pages/bulletins/VersionPage';
 import { BriefingPage } from './pages/briefings/BriefingPage';
 import { BriefingsPage } from './pages/briefings/BriefingsPage';
+import { ReleasePage } from './pages/releases/ReleasePage';
+import { ReleasesPage } from './pages/releases/ReleasesPage';
 
 export const router = createBrowserRouter([
   {
@@ -63,6 +65,18 @@ export const router = createBrowserRouter([
               { index: true, element: <BulletinsPage /> },
               { path: ':id', element: <BulletinPage /> },
               { path: ':id/versions/:version', element: <VersionPage /> },
+            ],
+          },
+          {
+            path: 'releases',
+            element: (
+              <RequireAbility action="read" subject="Release">
+                <Outlet />
+              </RequireAbility>
+            ),
+            children: [
+              { index: true, element: <ReleasesPage /> },
+              { path: ':id', element: <ReleasePage /> },
             ],
           },
           {
