@@ -116,7 +116,7 @@ describe('run results in the browser', () => {
     expect(ipText).toMatch(/\de-\d/);
     expect(ipText).toMatch(/linear|line of variations|Monte Carlo/);
     expect(ipText).toMatch(/about 1 in [\d,]+/);
-    expect(await table.locator('caption').textContent()).toContain(`run #${runId}, HSO-26-N4 solution v2`);
+    expect(await page.getByTestId('encounter-source').textContent()).toContain(`run #${runId}, HSO-26-N4 solution v2`);
 
     // unit switch
     await page.getByText('LD', { exact: true }).click();

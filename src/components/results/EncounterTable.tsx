@@ -71,13 +71,10 @@ export function EncounterTable({
   }
   const from = `run #${source.runId}, ${source.objectDesignation} solution v${source.solutionVersion}`;
   return (
+    <div>
     <div className="relative overflow-x-auto rounded-lg border border-rule bg-white">
       <table className="w-full min-w-[52rem] text-left text-sm" data-testid="encounter-table">
-        <caption className="caption-bottom px-3 py-2 text-left text-xs text-ink-soft">
-          From {from} (solution SHA-256 {source.inputSha256.slice(0, 12)}…), {source.engineVersion ?? 'engine version not recorded'}; methods run: {source.methods.join(', ')}.
-          {rows.some((r) => r.utcPredicted) && <>† UTC of a future date assumes no further leap seconds (TDB is exact). </>}
-          3σ range: closest distance over the linear 3σ b-plane ellipse (0 when it contains the planet's centre). Energy range: envelope of the diameter, albedo and density brackets.
-        </caption>
+        <caption className="sr-only">Close approaches of run #{source.runId}, {source.objectDesignation} solution v{source.solutionVersion}</caption>
         <thead className="bg-accent-50">
           <tr>
             <th scope="col" className={th}>Date (UTC)<br /><span className="font-normal text-ink-soft">TDB</span></th>
@@ -164,6 +161,12 @@ export function EncounterTable({
           })}
         </tbody>
       </table>
+    </div>
+    <p className="mt-1 text-xs text-ink-soft" data-testid="encounter-source">
+          From {from} (solution SHA-256 {source.inputSha256.slice(0, 12)}…), {source.engineVersion ?? 'engine version not recorded'}; methods run: {source.methods.join(', ')}.
+          {rows.some((r) => r.utcPredicted) && <>† UTC of a future date assumes no further leap seconds (TDB is exact). </>}
+          3σ range: closest distance over the linear 3σ b-plane ellipse (0 when it contains the planet's centre). Energy range: envelope of the diameter, albedo and density brackets.
+    </p>
     </div>
   );
 }
