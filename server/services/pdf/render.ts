@@ -422,7 +422,7 @@ function figureList(ctx: Ctx): void {
       [{ text: source, color: COLOR.muted }],
     ] as Run[][];
   });
-  drawTable(doc, ctx.fonts, { shares: [0.35, 1.5, 2.3, 2.4], header: [[{ text: '#' }], [{ text: 'Quantity' }], [{ text: 'Value' }], [{ text: 'Source' }]], rows }, box);
+  drawTable(doc, ctx.fonts, { shares: [0.35, 1.4, 2.65, 2.15], header: [[{ text: '#' }], [{ text: 'Quantity' }], [{ text: 'Value' }], [{ text: 'Source' }]], rows }, box);
 }
 
 function signOff(ctx: Ctx): void {
