@@ -8,7 +8,8 @@ import type { LinkedFigureAttrs } from '../../shared/bulletins/document';
 import type { FigureSnapshot, FigureStatus } from '../../shared/schemas/bulletins';
 import type { Run } from '../../shared/schemas/runs';
 import { api } from '../api/client';
-import { runKeys, useObjectRuns } from '../api/runs';
+import type { RunListResponse } from '../../shared/schemas/runs';
+import { runKeys } from '../api/runs';
 import { useAppAbility } from '../auth/useAppAbility';
 import type { FigureLookup, FigureSource, RunResultLookup } from './FigureSource';
 import { previewFigure } from './preview';
@@ -36,14 +37,17 @@ function useRunResultFrom(runId: number, enabled: boolean, refusal: string): Run
   return { state: 'ok', runId, result: q.data.result, run: q.data };
 }
 
+const RUNS_HIDDEN = 'The run behind this block is shown to analysts and reviewers; the PDF of each approved version includes it.';
+
 export function useLiveFigureSource(objectId: number, statuses: FigureStatus[], editable: boolean): FigureSource {
+  const canReadRuns = useAppAbility().can('read', 'Run');
   return useMemo<FigureSource>(
     () => ({
       editable,
       objectId,
       useFigure(attrs: LinkedFigureAttrs): FigureLookup {
         const status = statuses.find((s) => sameFigure(s.attrs, attrs));
-        const run = useRunQuery(attrs.runId, !status);
+        const run = useRunQuery(attrs.runId, !status && canReadRuns);
         if (status) {
           if (!status.value) return { state: 'missing', message: status.problem ?? 'No value' };
           return {
@@ -52,6 +56,7 @@ export function useLiveFigureSource(objectId: number, statuses: FigureStatus[], 
             newer: status.stale && status.latestRunId !== null ? { runId: status.latestRunId, value: status.latestValue } : null,
           };
         }
+        if (!canReadRuns) return { state: 'missing', message: 'Not saved yet' };
         if (run.isPending) return { state: 'loading' };
         if (run.isError) return { state: 'missing', message: `Run #${attrs.runId} could not be loaded.` };
         const p = previewFigure(run.data, attrs);
@@ -60,16 +65,20 @@ export function useLiveFigureSource(objectId: number, statuses: FigureStatus[], 
         return { state: 'ok', value: p.value, newer: null };
       },
       useRunResult(runId: number): RunResultLookup {
-        return useRunResultFrom(runId, true, '');
+        return useRunResultFrom(runId, canReadRuns, RUNS_HIDDEN);
       },
       useNewerRun(runId: number): number | null {
-        const runs = useObjectRuns(objectId);
+        const runs = useQuery({
+          queryKey: runKeys.forObject(objectId),
+          queryFn: async () => (await api<RunListResponse>('GET', `/api/runs?objectId=${objectId}&limit=20`)).runs,
+          enabled: editable && canReadRuns,
+        });
         // newest first: the first finished run is the latest
         const latest = runs.data?.find((r) => r.status === 'done')?.id ?? null;
         return editable && latest !== null && latest > runId ? latest : null;
       },
     }),
-    [objectId, statuses, editable],
+    [objectId, statuses, editable, canReadRuns],
   );
 }
 
@@ -85,7 +94,7 @@ export function useFrozenFigureSource(snapshots: FigureSnapshot[]): FigureSource
         return snap ? { state: 'ok', value: snap.value, newer: null } : { state: 'missing', message: 'This figure has no snapshot in the version.' };
       },
       useRunResult(runId: number): RunResultLookup {
-        return useRunResultFrom(runId, canReadRuns, 'This table or plot is part of the PDF of this version.');
+        return useRunResultFrom(runId, canReadRuns, RUNS_HIDDEN);
       },
       useNewerRun: () => null,
     }),

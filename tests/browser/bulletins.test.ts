@@ -116,6 +116,18 @@ describe('bulletins in the browser', () => {
     expect(await tip.textContent()).toContain(`Run #${runId}`);
     expect(await tip.textContent()).toContain('solution v1');
 
+    // a distance plot of the same approach, chosen in the insert dialog, drawn by the shared SVG renderer
+    await page.keyboard.press('Enter');
+    await page.getByRole('button', { name: 'Insert plot' }).click();
+    const plotDialog = page.getByRole('dialog', { name: 'Insert a plot' });
+    await plotDialog.getByLabel('Run').selectOption(String(runId));
+    await plotDialog.getByLabel('Plot').selectOption('distance');
+    await plotDialog.getByLabel('Approach').selectOption({ index: 0 });
+    await plotDialog.getByRole('button', { name: 'Insert' }).click();
+    const plot = page.getByTestId('plot-block');
+    await plot.locator('svg').waitFor();
+    expect(await plot.textContent()).toContain(`Distance plot · earth · run #${runId}`);
+
     // autosave: the indicator reaches "Saved" with a revision above the first
     const status = page.getByTestId('save-status');
     await page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'saved' && /revision [2-9]|revision \d{2,}/.test(document.querySelector('[data-testid="save-status"]')?.textContent ?? ''), null, { timeout: 10_000 });
