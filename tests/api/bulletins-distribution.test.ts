@@ -5,8 +5,10 @@
 // Sources: the agreed contract (issue 6 item 6 and the resource list); transactional outbox and at-most-once per row:
 // common practice, no source; PDF files start with "%PDF-" (ISO 32000-1 §7.5.2, file header); RFC 9110 §15.5.10 (409).
 import { eq } from 'drizzle-orm';
+import nodemailer from 'nodemailer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mailOutbox } from '../../server/db/schema';
+import { createMailService } from '../../server/services/mail';
 import { bulletinSchema, briefingDetailSchema, briefingListResponseSchema, distributionSchema, stakeholderListSchema, type Distribution } from '../../shared/schemas/bulletins';
 import { DEMO_USERS, startTestServer, type TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
@@ -84,7 +86,12 @@ describe('distribution', () => {
     // SMTP back: the retry pass (what the server's timer runs) sends each message once.
     await srv.mail.start();
     for (const r of rows) srv.db.update(mailOutbox).set({ nextAttemptAt: new Date(Date.now() - 1) }).where(eq(mailOutbox.id, r.id)).run();
-    await Promise.all([srv.services.mail.deliverPending(), srv.services.mail.deliverPending()]);
+    // Two senders at once (this server's outbox and a second one on the same database, as a second process would
+    // have): the atomic claim lets only one of them send each row.
+    const otherTransport = nodemailer.createTransport({ host: '127.0.0.1', port: srv.mail.port, ignoreTLS: true });
+    const otherSender = createMailService(srv.db, otherTransport, srv.config.mailFrom);
+    await Promise.all([srv.services.mail.deliverPending(), otherSender.deliverPending(), srv.services.mail.deliverPending()]);
+    otherTransport.close();
     const delivered = await poll(as.communications, dist.id, (d) => d.recipients.every((r) => r.status === 'sent'));
     expect(delivered.counts).toMatchObject({ total: 2, sent: 2, pending: 0, failed: 0, acknowledged: 0 });
     expect(delivered.recipients.every((r) => r.attempts === 3)).toBe(true);

@@ -46,6 +46,8 @@ export interface TestServer {
   /** The assessment-run runner, when started with the `runner` option. */
   runner: Runner | undefined;
   mail: {
+    /** Port of the in-process SMTP fake (127.0.0.1). */
+    port: number;
     /** Every message received so far, oldest first. */
     messages(): Promise<TestMail[]>;
     /** Wait (up to timeoutMs) for a message to this address and return the newest one. */
@@ -175,6 +177,7 @@ export async function startTestServer(opts: TestServerOptions = {}): Promise<Tes
     services,
     runner,
     mail: {
+      port: smtp.port,
       messages,
       clear: smtp.clear,
       stop: smtp.stop,
