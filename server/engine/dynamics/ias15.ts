@@ -137,17 +137,17 @@ export class Ias15 {
   private readonly csv: Float64Array;
   private readonly b: Float64Array;
   private readonly g: Float64Array;
-  private readonly e: Float64Array;
+  private e: Float64Array;
+  /** b and e of the last accepted step (br is also the dense output's polynomial); e and er swap at each accept. */
   private readonly br: Float64Array;
-  private readonly er: Float64Array;
+  private e2: Float64Array;
   private readonly xs: Float64Array;
   private readonly vs: Float64Array;
   private readonly at: Float64Array;
-  // Last accepted step, for dense output: start state, acceleration and b.
+  // Last accepted step, for dense output: start state, acceleration (b is br).
   private readonly dx0: Float64Array;
   private readonly dv0: Float64Array;
   private readonly da0: Float64Array;
-  private readonly db: Float64Array;
   private dStartOffset = 0;
   private dDt = 0;
   private hasStep = false;
@@ -176,7 +176,7 @@ export class Ias15 {
     const mk = () => new Float64Array(n3);
     const mk7 = () => new Float64Array(7 * n3);
     this.x = mk(); this.v = mk(); this.a = mk(); this.csx = mk(); this.csv = mk();
-    this.b = mk7(); this.g = mk7(); this.e = mk7(); this.br = mk7(); this.er = mk7(); this.db = mk7();
+    this.b = mk7(); this.g = mk7(); this.e = mk7(); this.br = mk7(); this.e2 = mk7();
     this.xs = mk(); this.vs = mk(); this.at = mk();
     this.dx0 = mk(); this.dv0 = mk(); this.da0 = mk();
   }
@@ -189,7 +189,7 @@ export class Ias15 {
     for (let k = 0; k < this.n3; k++) {
       this.x[k] = x[k]; this.v[k] = v[k]; this.csx[k] = 0; this.csv[k] = 0;
     }
-    this.b.fill(0); this.g.fill(0); this.e.fill(0); this.br.fill(0); this.er.fill(0);
+    this.b.fill(0); this.g.fill(0); this.e.fill(0); this.br.fill(0); this.e2.fill(0);
     this.aValid = false;
     this.hasStep = false;
     this.dt = dtDays;
@@ -206,7 +206,7 @@ export class Ias15 {
       const k = 3 * particle + c;
       this.x[k] = x[c]; this.v[k] = v[c]; this.csx[k] = 0; this.csv[k] = 0;
       this.b.fill(0, 7 * k, 7 * k + 7); this.g.fill(0, 7 * k, 7 * k + 7); this.e.fill(0, 7 * k, 7 * k + 7);
-      this.br.fill(0, 7 * k, 7 * k + 7); this.er.fill(0, 7 * k, 7 * k + 7);
+      this.br.fill(0, 7 * k, 7 * k + 7); this.e2.fill(0, 7 * k, 7 * k + 7);
     }
     this.aValid = false;
   }
@@ -269,11 +269,20 @@ export class Ias15 {
 
   /**
    * Corrector at node n (1..7) from the accelerations `at`: new g_{n-1} by divided differences, b updated by the
-   * change. Returns max |change of g_6| / max |at| at n = 7 when `measure` (adaptive iterations), else 0.
+   * change; for n < 7 also the predicted state at node n + 1 into (xs, vs) (predict() fused into this pass).
+   * Returns max |change of g_6| / max |at| at n = 7 when `measure` (adaptive iterations), else 0.
    */
-  private correct(n: number, measure: boolean): number {
+  private correct(n: number, measure: boolean, dt: number): number {
     const n3 = this.n3, a = this.a, at = this.at, g = this.g, b = this.b;
+    const x = this.x, v = this.v, xs = this.xs, vs = this.vs;
     const m = n - 1;
+    // Nodes 1..6: the predictor of node n + 1 is fused into the same pass (uses the b just updated).
+    const nn = n < 7 ? n + 1 : 7;
+    const sdt = RADAU_NODES[nn] * dt;
+    const sdt2 = sdt * sdt;
+    const o = nn * 7;
+    const px0 = PX[o], px1 = PX[o + 1], px2 = PX[o + 2], px3 = PX[o + 3], px4 = PX[o + 4], px5 = PX[o + 5], px6 = PX[o + 6];
+    const pv0 = PV[o], pv1 = PV[o + 1], pv2 = PV[o + 2], pv3 = PV[o + 3], pv4 = PV[o + 4], pv5 = PV[o + 5], pv6 = PV[o + 6];
     const ro = n * 8;
     const r0 = RINV[ro];
     let maxDelta = 0, maxA = 0;
@@ -284,6 +293,12 @@ export class Ias15 {
           const d = gm - g[q];
           g[q] = gm;
           b[q] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -296,6 +311,12 @@ export class Ias15 {
           g[q + 1] = gm;
           b[q] += c01 * d;
           b[q + 1] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -309,6 +330,12 @@ export class Ias15 {
           b[q] += c02 * d;
           b[q + 1] += c12 * d;
           b[q + 2] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -323,6 +350,12 @@ export class Ias15 {
           b[q + 1] += c13 * d;
           b[q + 2] += c23 * d;
           b[q + 3] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -338,6 +371,12 @@ export class Ias15 {
           b[q + 2] += c24 * d;
           b[q + 3] += c34 * d;
           b[q + 4] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -354,6 +393,12 @@ export class Ias15 {
           b[q + 3] += c35 * d;
           b[q + 4] += c45 * d;
           b[q + 5] += d;
+          {
+            const c0 = b[q], c1 = b[q + 1], c2 = b[q + 2], c3 = b[q + 3], c4 = b[q + 4], c5 = b[q + 5], c6 = b[q + 6];
+            const ak = a[k];
+            xs[k] = x[k] + sdt * v[k] + sdt2 * (0.5 * ak + c0 * px0 + c1 * px1 + c2 * px2 + c3 * px3 + c4 * px4 + c5 * px5 + c6 * px6);
+            vs[k] = v[k] + sdt * (ak + c0 * pv0 + c1 * pv1 + c2 * pv2 + c3 * pv3 + c4 * pv4 + c5 * pv5 + c6 * pv6);
+          }
         }
         break;
       }
@@ -413,7 +458,7 @@ export class Ias15 {
       }
       if (dt !== this.dt && this.dtLastSuccess !== 0) {
         // Step shortened by the cap or the target: rescale the predicted polynomial to the actual step.
-        this.predictNextStep(dt / this.dtLastSuccess, this.er, this.br);
+        this.predictNextStep(dt / this.dtLastSuccess, this.e2, this.br);
       }
       if (Math.abs(dt) < this.minStep && !final) {
         throw new StepCollapseError(`integrator step collapsed to ${dt} d at tdbDays ${tStart}`);
@@ -443,10 +488,10 @@ export class Ias15 {
         }
         pcErrorLast = pcError;
         iterations++;
+        this.predict(1, dt);
         for (let n = 1; n < 8; n++) {
-          this.predict(n, dt);
           this.force.accelerations(tStart + RADAU_NODES[n] * dt, this.xs, this.vs, this.at);
-          const r = this.correct(n, fixed === 0);
+          const r = this.correct(n, fixed === 0, dt);
           if (n === 7) pcError = r;
         }
       }
@@ -481,7 +526,7 @@ export class Ias15 {
         // Reject: retry from the same state with the smaller step.
         this.rejected++;
         this.dt = dtNew;
-        if (this.dtLastSuccess !== 0) this.predictNextStep(dtNew / this.dtLastSuccess, this.er, this.br);
+        if (this.dtLastSuccess !== 0) this.predictNextStep(dtNew / this.dtLastSuccess, this.e2, this.br);
         else b.fill(0);
         continue;
       }
@@ -489,7 +534,7 @@ export class Ias15 {
 
       // Accept: keep the step for dense output, then advance with compensated sums.
       this.dx0.set(x); this.dv0.set(v); this.da0.set(a);
-      this.db.set(b);
+      this.br.set(b);
       this.dStartOffset = this.offset;
       this.dDt = dt;
       this.hasStep = true;
@@ -524,11 +569,13 @@ export class Ias15 {
       this.aValid = false;
       this.steps++;
       this.dtLastSuccess = dt;
-      this.er.set(this.e);
-      this.br.set(b);
+      // e of this step becomes the "old" e (swap, no copy); br already holds b.
+      const eAccepted = this.e;
+      this.e = this.e2;
+      this.e2 = eAccepted;
       // When the step was shortened (target or cap), keep the controller's natural step for the next one.
       this.dt = dtNew;
-      this.predictNextStep(dtNew / dt, this.er, this.br);
+      this.predictNextStep(dtNew / dt, this.e2, this.br);
       return final;
     }
   }
@@ -570,7 +617,7 @@ export class Ias15 {
     const sdt = s * dt;
     const sdt2 = sdt * sdt;
     const s2 = s * s, s3 = s2 * s, s4 = s2 * s2, s5 = s4 * s, s6 = s3 * s3, s7 = s6 * s;
-    const b = this.db;
+    const b = this.br;
     for (let c = 0; c < 3; c++) {
       const k = 3 * particle + c;
       const q = 7 * k;
