@@ -9,6 +9,7 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
 import { inflateSync } from 'node:zlib';
+import PDFDocument from 'pdfkit';
 
 export type FontStyle = 'regular' | 'bold' | 'italic' | 'boldItalic';
 
@@ -53,8 +54,7 @@ export function primaryFont(style: FontStyle): string {
   return `mw-latin-${style}`;
 }
 
-type GlyphFont = { hasGlyphForCodePoint(cp: number): boolean };
-type DocWithFont = PDFKit.PDFDocument & { _font: { font: GlyphFont; ascender: number } };
+type DocWithFont = PDFKit.PDFDocument & { _font: { font: { characterSet: number[] }; ascender: number } };
 
 /**
  * WOFF 1.0 -> plain sfnt (TrueType/OpenType) bytes (W3C WOFF File Format 1.0, sections 4-5): the same tables,
@@ -111,22 +111,43 @@ function fontBytes(file: string): Buffer {
   return b;
 }
 
-/** Registers every font file and answers coverage questions for one document. */
+type FontInfo = { codePoints: Set<number>; ascender: number };
+let infoCache: Map<string, FontInfo> | null = null;
+
+/**
+ * Coverage (code points) and ascender of every font of the chains, read once per process from a scratch pdfkit
+ * document (pdfkit opens the file with fontkit), so a bulletin only opens the fonts it actually uses.
+ */
+function fontInfo(): Map<string, FontInfo> {
+  if (infoCache) return infoCache;
+  const scratch = new PDFDocument({ autoFirstPage: false }) as DocWithFont;
+  const m = new Map<string, FontInfo>();
+  for (const style of STYLES) {
+    for (const [name, file] of fontChain(style)) {
+      if (m.has(name)) continue;
+      scratch.registerFont(name, fontBytes(file));
+      scratch.font(name);
+      m.set(name, { codePoints: new Set(scratch._font.font.characterSet), ascender: scratch._font.ascender });
+    }
+  }
+  infoCache = m;
+  return m;
+}
+
+/** Registers every font file with one document and answers coverage questions for it. */
 export class FontSet {
-  private readonly coverage = new Map<string, GlyphFont>();
+  private readonly info: Map<string, FontInfo>;
   private readonly chains = new Map<FontStyle, string[]>();
-  private readonly ascenders = new Map<string, number>();
 
   constructor(private readonly doc: PDFKit.PDFDocument) {
+    this.info = fontInfo();
+    const registered = new Set<string>();
     for (const style of STYLES) {
       const names: string[] = [];
       for (const [name, file] of fontChain(style)) {
-        if (!this.coverage.has(name)) {
-          doc.registerFont(name, fontBytes(file));
-          doc.font(name);
-          this.coverage.set(name, (doc as DocWithFont)._font.font);
-          this.ascenders.set(name, (doc as DocWithFont)._font.ascender);
-        }
+        // Registration only records the source; pdfkit opens (and embeds) a font when it is first used.
+        if (!registered.has(name)) doc.registerFont(name, fontBytes(file));
+        registered.add(name);
         names.push(name);
       }
       this.chains.set(style, names);
@@ -144,12 +165,12 @@ export class FontSet {
 
   /** Ascender of a registered font, in 1/1000 em (pdfkit's unit). */
   ascender(name: string): number {
-    return this.ascenders.get(name)!;
+    return this.info.get(name)!.ascender;
   }
 
   /** First font of the style's chain that has the code point, or null (no font has it). */
   fontFor(style: FontStyle, cp: number): string | null {
-    for (const name of this.chains.get(style)!) if (this.coverage.get(name)!.hasGlyphForCodePoint(cp)) return name;
+    for (const name of this.chains.get(style)!) if (this.info.get(name)!.codePoints.has(cp)) return name;
     return null;
   }
 
@@ -172,7 +193,7 @@ export class FontSet {
       if (ch === '\n' || ch === '\r') {
         // Line breaks are layout, not glyphs: they stay in the current run.
         font = last ? last.font : primary;
-      } else if (/\s/.test(ch) && last && this.coverage.get(last.font)!.hasGlyphForCodePoint(cp)) {
+      } else if (/\s/.test(ch) && last && this.info.get(last.font)!.codePoints.has(cp)) {
         font = last.font;
       } else {
         const f = this.fontFor(style, cp);
