@@ -110,6 +110,7 @@ export function distanceSeries(result: AssessmentResult, approachIndex: number, 
   const method = hyper
     ? `planet-centred two-body hyperbola from the linear data (q = nominal distance, v∞ = ${a.vInfinityKmS!.toFixed(2)} km/s); band: 3σ distance range and ±3σ encounter time`
     : `straight line at the relative speed (${a.relativeSpeedKmS.toFixed(2)} km/s): no v-infinity for this approach`;
+  const caveat = a.linearValidity?.valid === false ? ' (linear method NOT validated at this approach: the band is indicative only)' : '';
   return {
     body: a.body,
     tHours,
@@ -119,7 +120,7 @@ export function distanceSeries(result: AssessmentResult, approachIndex: number, 
     centreTdbJd: a.epochTdbJd,
     centreUtc: a.utc,
     planetRadiusKm: BODY_RADIUS_KM[a.body] ?? null,
-    method: range ? method : method.replace(/; band:.*$/, '') + ' (no linear spread at this approach)',
+    method: range ? method + caveat : method.replace(/; band:.*$/, '') + ' (no linear spread at this approach)',
   };
 }
 

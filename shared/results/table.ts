@@ -133,7 +133,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
 }
 
 /** CSV columns: name (units in the name) and how to read the value from a row. */
-const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource) => string | number | null][] = [
+const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource, res: AssessmentResult) => string | number | null][] = [
   ['run_id', (_r, s) => s.runId],
   ['object', (_r, s) => s.objectDesignation],
   ['solution_version', (_r, s) => s.solutionVersion],
@@ -164,6 +164,9 @@ const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource) => string | numbe
   ['energy_mt_nominal', (r) => r.energyMt.nominal],
   ['energy_mt_low', (r) => r.energyMt.low],
   ['energy_mt_high', (r) => r.energyMt.high],
+  ['diameter_m_nominal', (_r, _s, res) => res.diameterM.nominal],
+  ['diameter_m_low', (_r, _s, res) => res.diameterM.low],
+  ['diameter_m_high', (_r, _s, res) => res.diameterM.high],
   ['nominal_impact', (r) => String(r.impact)],
   ['window_edge', (r) => String(r.windowEdge)],
   ['linear_valid', (r) => (r.linearValid === null ? null : String(r.linearValid))],
@@ -180,7 +183,7 @@ export function csvField(v: string | number | null): string {
 /** The encounter table as CSV (RFC 4180, CRLF line ends, full-precision numbers, one header line). */
 export function encounterCsv(result: AssessmentResult, source: ResultSource): string {
   const lines = [CSV_COLUMNS.map(([name]) => name).join(',')];
-  for (const r of encounterRows(result)) lines.push(CSV_COLUMNS.map(([, get]) => csvField(get(r, source))).join(','));
+  for (const r of encounterRows(result)) lines.push(CSV_COLUMNS.map(([, get]) => csvField(get(r, source, result))).join(','));
   return lines.join('\r\n') + '\r\n';
 }
 

@@ -161,6 +161,7 @@ describe('encounter table exports', async () => {
     expect(Number(a.distance_km)).toBe(26000.5);
     expect(a.impact_probability_method).toBe('linear');
     expect([a.nominal_impact, a.window_edge]).toEqual(['false', 'false']);
+    expect([a.diameter_m_nominal, a.diameter_m_low, a.diameter_m_high]).toEqual(['120', '100', '140']);
     expect(a.ip_monte_carlo_samples).toBe('1000');
     expect(a.method_flags.startsWith('linear IP 7.33e-2 is above')).toBe(true);
     const w = row(2);

@@ -192,3 +192,12 @@ describe('byte-stable output (PDFs hash their content)', () => {
     expect(distanceSvg(r, 0, { unit: 'ld' })).toBe(distanceSvg(synthetic(), 0, { unit: 'ld' }));
   });
 });
+
+describe('distance band caveat', () => {
+  it('says when the linear method failed its check at the approach', () => {
+    const r = synthetic();
+    expect(distanceSeries(r, 0).method).not.toMatch(/NOT validated/);
+    r.approaches[0].linearValidity = { valid: false, nonlinearity: 0.4, reasons: ['3-sigma check 40%'] };
+    expect(distanceSeries(r, 0).method).toMatch(/NOT validated/);
+  });
+});
