@@ -89,8 +89,10 @@ export const figureStatusSchema = z.object({
   value: figureValueSchema.nullable(),
   /** Why value is null. */
   problem: z.string().nullable(),
-  /** The bound run is older than the object's latest completed run. */
+  /** Out of date: the bound run is not the object's latest completed run, or its solution is not the latest. */
   stale: z.boolean(),
+  /** Why it is out of date: a newer completed run exists, or only a newer solution version (no run of it yet). */
+  staleBecause: z.enum(['newerRun', 'newerSolution']).nullable().optional(),
   latestRunId: z.number().int().nullable(),
   /** The value from the latest run (shown beside a stale figure; rebinding sets attrs.runId to latestRunId). */
   latestValue: figureValueSchema.nullable(),

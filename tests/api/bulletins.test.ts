@@ -8,6 +8,8 @@
 // stored as run rows directly; the expected text is written from the fixture's raw numbers with toFixed here, not
 // with the code under test.
 import { createHash } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { bulletins, bulletinVersions, staleFigureConfirmations } from '../../server/db/schema';
@@ -284,7 +286,7 @@ describe('stale figures and version differences', () => {
       const newer = insertRun(s, 1, new Date('2027-12-01T01:00:00Z'));
       const stale = bulletinSchema.parse((await c.analyst.get(`/api/bulletins/${b.id}`)).body);
       expect(stale.staleFigureCount).toBe(2);
-      expect(stale.figures[0]).toMatchObject({ stale: true, latestRunId: newer });
+      expect(stale.figures[0]).toMatchObject({ stale: true, staleBecause: 'newerRun', latestRunId: newer });
       expect(stale.figures[0].value?.text).toBe(palermoText(0));
       expect(stale.figures[0].latestValue?.text).toBe(palermoText(1));
       expect(palermoText(0)).not.toBe(palermoText(1));
@@ -319,6 +321,15 @@ describe('stale figures and version differences', () => {
 
       const v2 = bulletinVersionDetailSchema.parse((await c.analyst.get(`/api/bulletins/${b.id}/versions/2`)).body);
       expect(v2.diff?.against).toBe(1);
+      // A newer solution version without a run yet also marks the figures out of date (no new value to show).
+      const opm = fs.readFileSync(path.join(process.cwd(), 'server/db/demo/hso-26-n4.opm'), 'utf8');
+      s.services.objects.addSolution(obj, { text: opm, sourceKind: 'opm', fileName: 'hso-26-n4-refit.opm', fit: { observationArcDays: 30, observationCount: 120, fitRmsArcsec: 0.4 } }, null);
+      const afterRefit = bulletinSchema.parse((await c.analyst.get(`/api/bulletins/${b.id}`)).body);
+      expect(afterRefit.figures.map((f) => [f.stale, f.staleBecause, f.latestValue])).toEqual([
+        [true, 'newerSolution', null],
+        [true, 'newerSolution', null],
+      ]);
+
       expect(v2.diff?.text.filter((o) => o.op === 'delete').map((o) => o.text)).toEqual(['The asteroid passes Earth in September 2034.', `Palermo scale: «${palermoText(0)}».`]);
       expect(v2.diff?.text.filter((o) => o.op === 'insert').map((o) => o.text)).toEqual(['The asteroid passes Earth on 17 September 2034.', `Palermo scale: «${palermoText(1)}».`]);
       const figs = v2.diff!.figures;

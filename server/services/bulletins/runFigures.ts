@@ -1,12 +1,12 @@
-// Figures of a draft against the runs in the database: the value from the bound run, and staleness (a figure
-// bound to a run older than the object's latest completed run is out of date; the latest run's value is shown
-// beside it). Synchronous (better-sqlite3), so it can run inside a transaction.
+// Figures of a draft against the runs in the database: the value from the bound run, and staleness: a figure is
+// out of date when it is bound to a run other than the object's latest completed run (whose value is shown beside
+// it), or to a run of an older solution version than the object's latest (a newer solution without a run yet). Synchronous (better-sqlite3), so it can run inside a transaction.
 import { and, desc, eq, inArray } from 'drizzle-orm';
 import { linkedFigures, type BulletinDocument } from '../../../shared/bulletins/document';
 import { tryExtractFigure, type RunRef } from '../../../shared/bulletins/figures';
 import type { FigureSnapshot, FigureStatus } from '../../../shared/schemas/bulletins';
 import type { Db } from '../../db/client';
-import { assessmentRuns } from '../../db/schema';
+import { assessmentRuns, trackedObjects } from '../../db/schema';
 
 export interface LoadedRun {
   ref: RunRef;
@@ -67,6 +67,7 @@ export function figureStatuses(db: Reader, objectId: number, document: BulletinD
   const latestId = latestCompletedRunId(db, objectId);
   const runs = loadRuns(db, [...new Set([...figures.map((f) => f.attrs.runId), ...(latestId !== null ? [latestId] : [])])]);
   const latest = latestId !== null ? runs.get(latestId)! : null;
+  const latestSolutionVersion = db.select({ v: trackedObjects.latestSolutionVersion }).from(trackedObjects).where(eq(trackedObjects.id, objectId)).get()?.v ?? null;
   return figures.map(({ index, attrs }) => {
     const run = runs.get(attrs.runId);
     let value: FigureStatus['value'] = null;
@@ -79,9 +80,12 @@ export function figureStatuses(db: Reader, objectId: number, document: BulletinD
       value = r.value;
       problem = r.problem;
     }
-    const stale = latest !== null && latest.ref.runId !== attrs.runId;
-    const latestValue = stale && latest ? tryExtractFigure(latest.result, latest.ref, attrs).value : null;
-    return { index, attrs, value, problem, stale, latestRunId: latestId, latestValue };
+    const newerRun = latest !== null && latest.ref.runId !== attrs.runId;
+    const newerSolution = run !== undefined && latestSolutionVersion !== null && run.ref.solutionVersion < latestSolutionVersion;
+    const stale = newerRun || newerSolution;
+    const latestValue = newerRun && latest ? tryExtractFigure(latest.result, latest.ref, attrs).value : null;
+    const staleBecause = newerRun ? ('newerRun' as const) : newerSolution ? ('newerSolution' as const) : null;
+    return { index, attrs, value, problem, stale, staleBecause, latestRunId: latestId, latestValue };
   });
 }
 
