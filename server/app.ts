@@ -10,6 +10,7 @@ import { authorize } from './middleware/authorize';
 import { createCsrf } from './middleware/csrf';
 import { currentUser } from './middleware/currentUser';
 import { apiRouters } from './routes';
+import { publicPagesRouter } from './routes/public';
 import { SESSION_COOKIE } from './routes/session';
 import { createServices, type ServiceDeps, type Services } from './services';
 
@@ -70,6 +71,8 @@ export function buildApp(deps: AppDeps): { app: Express; services: Services } {
   api.use(apiNotFound);
   api.use(errorHandler(deps.logError));
   app.use('/api', api);
+  // The public release pages and feed (server-rendered, no sign-in; issue 7).
+  app.use(publicPagesRouter(services));
 
   serveClient(app, deps.clientDir);
   app.use(errorHandler(deps.logError));

@@ -55,6 +55,9 @@ async function main(): Promise<void> {
   for (const t of timers) t.unref();
   void services.mail.deliverPending();
 
+  // Press releases: publishes what fell due while the server was down (recording how late), then each at its time.
+  services.releaseScheduler.start();
+
   // Assessment runs: resumes runs a previous process left behind, then works the queue (server/services/runs).
   const demoRuns = queueDemoRuns(db, services.runs, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
   if (demoRuns.length) console.log(`Demo assessment runs queued: ${demoRuns.map((id) => `#${id}`).join(', ')} (computed in the background).`);
@@ -91,6 +94,7 @@ async function main(): Promise<void> {
     stopping = true;
     console.log(`${signal}: shutting down`);
     for (const t of timers) clearInterval(t);
+    services.releaseScheduler.stop();
     // Running engine work is stopped and its runs go back to the queue; the next start resumes them.
     await runner.stop();
     server.closeAllConnections();

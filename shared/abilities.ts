@@ -78,6 +78,8 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
       can('manage', ['StakeholderList', 'Observatory']);
       // Withdraws a bulletin (workflow table).
       can('transition', 'Bulletin');
+      // Cancels a press release that must not go out (workflow table).
+      can('transition', 'Release');
       // Operations: may cancel a stuck or runaway run (DELETE /api/runs/:id), never start one.
       can('delete', 'Run');
       break;
@@ -91,12 +93,15 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
       break;
     case 'reviewer':
       can(['review', 'approve', 'transition'], 'Bulletin');
+      // Press releases (issue 7): reviewers approve the public wording or ask for changes (shared/releases/workflow.ts).
+      can(['review', 'approve', 'transition'], 'Release');
       // Reviewers re-run an assessment to check it, but do not cancel other people's runs.
       can(['create', 'review'], 'Run');
       can('read', 'Observatory');
       break;
     case 'communications':
-      can(['create', 'update', 'publish'], 'Release');
+      // Press releases (issue 7): write, submit, schedule (publish at a time), reschedule and cancel.
+      can(['create', 'update', 'publish', 'transition'], 'Release');
       can(['publish', 'transition'], 'Bulletin');
       can('read', ['StakeholderList', 'Distribution']);
       can(['create', 'update'], 'Distribution');

@@ -74,6 +74,17 @@ export const ROUTES = [
   { method: 'GET', path: '/api/briefings/:id', action: 'read', subject: 'Briefing', summary: 'One briefing: the version sent, its figures and summary' },
   { method: 'GET', path: '/api/briefings/:id/pdf', action: 'read', subject: 'Briefing', summary: 'The PDF of the briefed version' },
   { method: 'POST', path: '/api/briefings/:id/acknowledge', action: 'acknowledge', subject: 'Briefing', summary: 'Acknowledge receipt {comment?} (idempotent)' },
+
+  { method: 'GET', path: '/api/releases', action: 'read', subject: 'Release', summary: 'Press releases, most recently changed first (?state=)' },
+  { method: 'POST', path: '/api/releases', action: 'create', subject: 'Release', summary: 'Start a release from an approved bulletin version {bulletinId, version} (figures copied; 201)' },
+  { method: 'GET', path: '/api/releases/:id', action: 'read', subject: 'Release', summary: 'One release: wording, copied figures, plain language, schedule, allowed actions, history' },
+  { method: 'PUT', path: '/api/releases/:id', action: 'update', subject: 'Release', summary: 'Save the draft wording; carries the revision it edits (409 with the current copy when stale)' },
+  { method: 'POST', path: '/api/releases/:id/schedule', action: 'publish', subject: 'Release', summary: 'Schedule or reschedule publication {publishAt (ISO with zone), timeZone?}; embargoed until then' },
+  { method: 'POST', path: '/api/releases/:id/cancel', action: 'transition', subject: 'Release', summary: 'Cancel a release that is not published {comment}' },
+  { method: 'POST', path: '/api/releases/:id/transitions', action: 'transition', subject: 'Release', summary: 'Workflow action {action, comment?, publishAt?, timeZone?} (shared/releases/workflow.ts)' },
+  { method: 'GET', path: '/api/releases/:id/versions/:version', action: 'read', subject: 'Release', summary: 'One locked (approved) wording with its hash' },
+  { method: 'GET', path: '/api/public/releases', action: 'read', subject: 'Release', public: true, summary: 'Published press releases (no sign-in; nothing embargoed, draft or cancelled)' },
+  { method: 'GET', path: '/api/public/releases/:slug', action: 'read', subject: 'Release', public: true, summary: 'One published press release (no sign-in)' },
 ] as const satisfies readonly RouteDef[];
 
 interface CompiledRoute {

@@ -9,10 +9,12 @@ import { distributionsRouter } from './distributions';
 import { healthRouter } from './health';
 import { invitationsRouter } from './invitations';
 import { objectsRouter } from './objects';
+import { publicApiRouter } from './public';
+import { releasesRouter } from './releases';
 import { runsRouter } from './runs';
 import { sessionRouter } from './session';
 import { usersRouter } from './users';
 
 export function apiRouters(services: Services, csrf: Csrf): Router[] {
-  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services), bulletinsRouter(services), distributionsRouter(services)];
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services), bulletinsRouter(services), distributionsRouter(services), releasesRouter(services), publicApiRouter(services)];
 }

@@ -8,6 +8,10 @@ import { createBulletinService } from './bulletins/service';
 import { createInvitationService } from './invitations';
 import { createMailService } from './mail';
 import { createObjectService } from './objects';
+import { createPublicSite } from './releases/publicSite';
+import { createReleaseScheduler } from './releases/scheduler';
+import { createReleaseService } from './releases/service';
+import { officeName } from './settings';
 import { createRunService } from './runs/service';
 import { SqliteSessionStore } from './sessionStore';
 import { createUserService } from './users';
@@ -28,6 +32,11 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const runs = createRunService(db);
   const bulletins = createBulletinService(db);
   const distributions = createDistributionService(db, bulletins, mail, config.publicUrl);
-  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs, bulletins, distributions };
+  const office = () => officeName(db);
+  const releases = createReleaseService(db, mail, { publicUrl: config.publicUrl, officeName: office });
+  const publicSite = createPublicSite(releases, { publicUrl: config.publicUrl, officeName: office });
+  // Not started here: server/index.ts starts it (tests start it when they need it).
+  const releaseScheduler = createReleaseScheduler(releases);
+  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs, bulletins, distributions, releases, publicSite, releaseScheduler };
 }
 export type Services = ReturnType<typeof createServices>;
