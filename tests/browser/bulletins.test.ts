@@ -317,6 +317,29 @@ describe('bulletins in the browser', () => {
     const kept = await apiJson(page, 'GET', `/api/bulletins/${created.id}`);
     expect(JSON.stringify(kept.document)).toContain('My closing sentence.');
     expect(kept.revision).toBe(rebound.revision + 2);
+
+    // a second conflict, resolved the other way: continue from the stored copy, the user's text stays readable
+    const other2 = await page.request.put(`/api/bulletins/${created.id}`, {
+      data: { revision: kept.revision, title: kept.title, document: { type: 'doc', content: [{ type: 'paragraph', content: [{ type: 'text', text: 'Second text from the other tab.' }] }] } },
+      headers: { 'x-csrf-token': csrfToken },
+    });
+    expect(other2.status()).toBe(200);
+    await page.getByTestId('bulletin-editor').click();
+    await page.keyboard.press('Control+End');
+    await page.keyboard.type(' Another sentence of mine.');
+    await page.waitForFunction(() => document.querySelector('[data-testid="save-status"]')?.getAttribute('data-save-state') === 'conflict');
+    await page.getByRole('button', { name: 'Continue from their copy' }).click();
+    expect(await page.getByTestId('bulletin-editor').textContent()).toBe('Second text from the other tab.');
+    expect(await page.getByTestId('previous-copy').textContent()).toContain('Another sentence of mine.');
+    await page.getByTestId('bulletin-editor').click();
+    await page.keyboard.press('Control+End');
+    await page.keyboard.type(' Merged.');
+    await page.waitForFunction(
+      (rev) => document.querySelector('[data-testid="save-status"]')?.textContent?.endsWith(`revision ${rev}`) ?? false,
+      kept.revision + 2,
+    );
+    const merged = await apiJson(page, 'GET', `/api/bulletins/${created.id}`);
+    expect(JSON.stringify(merged.document)).toContain('Second text from the other tab. Merged.');
     expect(errors).toEqual([]);
     await context.close();
   }, 240_000);

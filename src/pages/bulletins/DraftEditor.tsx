@@ -2,7 +2,7 @@
 // old revision is refused with the stored copy: both copies are shown, nothing is lost, the user chooses).
 import type { Editor } from '@tiptap/react';
 import { useCallback, useRef, useState } from 'react';
-import { documentText } from '../../../shared/bulletins/document';
+import { documentText, type BulletinDocument } from '../../../shared/bulletins/document';
 import type { Bulletin } from '../../../shared/schemas/bulletins';
 import { BulletinEditor, DocumentView } from '../../editor/BulletinEditor';
 import { useLiveFigureSource } from '../../editor/sources';
@@ -19,11 +19,14 @@ export function DraftEditor({ bulletin, handle }: { bulletin: Bulletin; handle: 
   const [title, setTitle] = useState(bulletin.title);
   const editorRef = useRef<Editor | null>(null);
   const source = useLiveFigureSource(bulletin.objectId, bulletin.figures, true);
+  const viewSource = useLiveFigureSource(bulletin.objectId, bulletin.figures, false);
   const onReady = useCallback((e: Editor) => {
     editorRef.current = e;
   }, []);
   const conflict = autosave.status.kind === 'conflict' ? autosave.status.current : null;
   const [copied, setCopied] = useState(false);
+  // After "continue from their copy", the user's own text stays readable beside the editor until dismissed.
+  const [previous, setPrevious] = useState<BulletinDocument | null>(null);
 
   return (
     <div className="space-y-3">
@@ -69,6 +72,7 @@ export function DraftEditor({ bulletin, handle }: { bulletin: Bulletin; handle: 
             <Button
               variant="secondary"
               onClick={() => {
+                setPrevious(autosave.draft.current.document);
                 editorRef.current?.commands.setContent(conflict.document, { emitUpdate: false });
                 setTitle(conflict.title);
                 autosave.takeTheirs(conflict);
@@ -80,12 +84,25 @@ export function DraftEditor({ bulletin, handle }: { bulletin: Bulletin; handle: 
         </Notice>
       )}
 
-      <div className={conflict ? 'grid gap-4 lg:grid-cols-2' : ''}>
+      <div className={conflict || previous ? 'grid gap-4 lg:grid-cols-2' : ''}>
         <div>
           {conflict && <h3 className="mb-2 text-sm font-semibold">Your copy (not saved)</h3>}
           <BulletinEditor document={bulletin.document} source={source} editable onChange={(doc) => autosave.change({ document: doc })} onReady={onReady} />
         </div>
         {conflict && <TheirCopy current={conflict} />}
+        {!conflict && previous && (
+          <div data-testid="previous-copy">
+            <div className="mb-2 flex items-center justify-between gap-2">
+              <h3 className="text-sm font-semibold">Your earlier text (not saved; copy what you need)</h3>
+              <Button variant="quiet" className="!px-2 !py-1" onClick={() => setPrevious(null)}>
+                Dismiss
+              </Button>
+            </div>
+            <div className="rounded-lg border border-rule bg-white p-4">
+              <DocumentView document={previous} source={viewSource} />
+            </div>
+          </div>
+        )}
       </div>
     </div>
   );
