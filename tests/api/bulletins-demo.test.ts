@@ -1,7 +1,9 @@
 // Demo bulletins: made once the demo asteroid's run is done (not before), with every figure bound to that run;
 // one approved and distributed (to the seeded government list, PDF attached), one in review; made once only.
 // Source: the agreed contract (issue 6 item 7). The run is the real engine-run fixture stored directly.
+import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { assessmentRuns } from '../../server/db/schema';
 import { DEMO_OFFICE } from '../../server/db/seed';
 import { DEMO_LISTS, seedDemoBulletins } from '../../server/services/bulletins/demo';
 import { bulletinListResponseSchema, bulletinSchema, distributionSchema } from '../../shared/schemas/bulletins';
@@ -17,10 +19,15 @@ afterAll(() => srv?.close());
 
 describe('demo bulletins', () => {
   it('waits for the demo run, then makes one distributed and one in-review bulletin bound to it, once', async () => {
+    // No run at all: nothing to wait for, nothing made. A queued run: wait for it.
+    expect(await seedDemoBulletins(srv.services, DEMO_OFFICE.emailDomain)).toBe('done');
+    const queued = insertRun(srv, 0, new Date('2026-12-01T00:30:00Z'));
+    srv.db.update(assessmentRuns).set({ status: 'queued', resultJson: null, finishedAt: null }).where(eq(assessmentRuns.id, queued)).run();
     expect(await seedDemoBulletins(srv.services, DEMO_OFFICE.emailDomain)).toBe('waiting');
     expect(srv.services.bulletins.list({}).bulletins).toHaveLength(0);
 
     const runId = insertRun(srv, 0, new Date('2026-12-01T01:00:00Z'));
+    srv.db.update(assessmentRuns).set({ status: 'cancelled' }).where(eq(assessmentRuns.id, queued)).run();
     expect(await seedDemoBulletins(srv.services, DEMO_OFFICE.emailDomain)).toBe('done');
     expect(await seedDemoBulletins(srv.services, DEMO_OFFICE.emailDomain)).toBe('done');
     // Signed in after the seeding (its first PDF render holds the event loop for a moment).

@@ -140,14 +140,16 @@ function demoDocument(run: { runId: number; result: unknown }, intro: string): B
 }
 
 /**
- * Make the demo bulletins when their runs are done. Returns 'done' (made now or before), or 'waiting' while the
- * asteroid's run is not finished yet (call again later).
+ * Make the demo bulletins when their runs are done. Returns 'done' (made now or before, or nothing to wait for), or
+ * 'waiting' while the demo runs are still queued or running (call again later).
  */
 export async function seedDemoBulletins(services: Services, emailDomain: string): Promise<'done' | 'waiting'> {
   const { db } = services;
   if (db.select().from(settings).where(eq(settings.key, DONE_KEY)).get()) return 'done';
   const nea = latestDoneRun(db, 'HSO-26-N4');
-  if (!nea) return 'waiting';
+  // No finished run yet: wait while one is queued or running; with none coming (none queued, or it failed), give up
+  // for this process (nothing is recorded, so the next start tries again).
+  if (!nea) return openRuns(db, 'HSO-26-N4') ? 'waiting' : 'done';
   // Wait while the comet's run is still being computed (it may give the second bulletin its figures).
   const comet = latestDoneRun(db, 'HSO-23-C2');
   if (!comet && openRuns(db, 'HSO-23-C2')) return 'waiting';
