@@ -190,7 +190,7 @@ describe('bulletins in the browser', () => {
     const { users } = await apiJson(admin.page, 'GET', '/api/users');
     const liaison = (users as { id: number; email: string }[]).find((u) => u.email === demoCredentials('liaison').email)!;
     await apiJson(admin.page, 'POST', '/api/stakeholder-lists', {
-      name: 'Civil protection liaisons',
+      name: 'Browser-test liaisons',
       kind: 'government',
       description: 'Test list',
       members: [{ userId: liaison.id }],
@@ -201,8 +201,10 @@ describe('bulletins in the browser', () => {
     await comms.page.goto(`/bulletins/${approvedBulletinId}`);
     await comms.page.getByRole('button', { name: 'Distribute…' }).click();
     const dialog = comms.page.getByRole('dialog', { name: 'Distribute version 1' });
-    await dialog.getByLabel('Stakeholder list').selectOption({ index: 1 });
-    expect(await dialog.textContent()).toContain('Civil protection liaisons');
+    const listSelect = dialog.getByLabel('Stakeholder list');
+    const optionValue = await listSelect.locator('option', { hasText: 'Browser-test liaisons' }).getAttribute('value');
+    await listSelect.selectOption(optionValue!);
+    expect(await dialog.textContent()).toContain(demoCredentials('liaison').email);
     await dialog.getByRole('button', { name: 'Send' }).click();
     const card = comms.page.locator('[data-testid^="distribution-"]').first();
     await card.waitFor();
@@ -213,7 +215,7 @@ describe('bulletins in the browser', () => {
     const lp = liaisonPage.page;
     await lp.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Briefings', exact: true }).click();
     expect(await waitForHeading(lp, 'Briefings')).toBe('Briefings');
-    await lp.getByRole('link', { name: /Close approach of HSO-26-N4/ }).click();
+    await lp.getByRole('link', { name: /Close approach of HSO-26-N4 in September 2034/ }).first().click();
     await lp.getByTestId('acknowledge-card').waitFor();
     expect(await lp.getByTestId('linked-figure').first().textContent()).toMatch(/km/);
     await lp.getByLabel('Note to the office (optional)').fill('Received; passed to the duty officer.');
