@@ -179,6 +179,16 @@ describe('byte stability', () => {
     expect(again.equals(pdf)).toBe(true);
   });
 
+  it('gives the same bytes when renderings run concurrently (they yield to the event loop between blocks)', async () => {
+    const other = { ...structuredClone(version), staleReason: 'concurrent' };
+    clearBulletinPdfCache();
+    const alone = await renderBulletinPdf(other);
+    clearBulletinPdfCache();
+    const [a, b] = await Promise.all([renderBulletinPdf(structuredClone(version)), renderBulletinPdf(other)]);
+    expect(a.equals(pdf)).toBe(true);
+    expect(b.equals(alone)).toBe(true);
+  });
+
   it('serves a repeated request from the cache as a copy the caller cannot spoil', async () => {
     const a = await renderBulletinPdf(version);
     a.fill(0);

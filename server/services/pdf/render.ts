@@ -545,9 +545,15 @@ export async function renderBulletinPdfImpl(v: BulletinVersionForPdf): Promise<B
   const ctx: Ctx = { doc, fonts, version: v, figureIndex: 0, shown: [] };
   doc.x = doc.page.margins.left;
   doc.y = doc.page.margins.top;
+  // Layout is synchronous CPU work (a plot with Monte Carlo points takes a while): give the event loop a turn between
+  // top-level blocks so one bulletin does not hold up every other request. The output does not depend on timing.
+  const yieldToLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
   titleBlock(ctx);
   caution(ctx);
-  blocks(ctx, v.document.content, fullBox(doc));
+  for (const node of v.document.content ?? []) {
+    block(ctx, node, fullBox(doc));
+    await yieldToLoop();
+  }
   figureList(ctx);
   signOff(ctx);
   footers(ctx);
