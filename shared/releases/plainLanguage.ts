@@ -60,13 +60,13 @@ function oneIn(p: number): string {
 }
 
 /**
- * The chance of missing as a percentage that is never rounded up to 100 %: enough decimals to show the first digit
- * below the nines, truncated (8.3e-5 -> "99.991%").
+ * The chance of missing as a percentage that is never rounded up to 100 %: enough decimals to reach the first digit
+ * that is not a 9, truncated (8.3e-5 -> "99.991%", 0.01 -> "99%").
  */
 export function missPercent(p: number): string {
   if (!isNum(p) || p <= 0) return '100%';
   if (p >= 1) return '0%';
-  const decimals = Math.max(0, Math.ceil(-Math.log10(p)) - 1);
+  const decimals = Math.max(0, Math.ceil(-Math.log10(p)) - 2);
   const factor = 10 ** decimals;
   const pct = Math.floor((1 - p) * 100 * factor) / factor;
   return `${pct.toFixed(decimals)}%`;
@@ -155,8 +155,11 @@ export function plainStatement(figureIndex: number, f: FigureValue): PlainStatem
       break;
     case 'diameter':
       if (isNum(v)) {
-        const m = (x: number) => (x >= 1000 ? `${roundForPublic(x / 1000, 2)} km` : `${roundForPublic(x, 2)} metres`);
-        text = isNum(f.low) && isNum(f.high) ? `about ${m(v)} across (between ${m(f.low)} and ${m(f.high)})` : `about ${m(v)} across`;
+        // One unit for the whole statement, chosen by the largest value (metres below 1 km).
+        const km = Math.max(v, isNum(f.high) ? f.high : v) >= 1000;
+        const n = (x: number) => roundForPublic(km ? x / 1000 : x, 2);
+        const unit = km ? 'km' : 'metres';
+        text = isNum(f.low) && isNum(f.high) ? `about ${n(v)} ${unit} across (between ${n(f.low)} and ${n(f.high)} ${unit})` : `about ${n(v)} ${unit} across`;
       }
       break;
     case 'energy':
