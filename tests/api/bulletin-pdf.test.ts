@@ -241,6 +241,15 @@ describe('degraded inputs', () => {
     for (const fig of v.figures) expect(t).toContain(fig.value.text);
   });
 
+  it('says why a plot was not drawn when its approach is not in the run, and still renders', async () => {
+    const v = structuredClone(version);
+    const plotNode = v.document.content.find((n) => n.type === 'plot')!;
+    plotNode.attrs = { ...plotNode.attrs, epochTdbJd: Number(plotNode.attrs!.epochTdbJd) + 400 };
+    const t = text(save('noplot.pdf', await renderBulletinPdf(v)));
+    expect(t).toContain("[plot not drawn: the run has no approach to earth near the plot's epoch]");
+    expect(t).toContain('Distance from Earth'); // the other plot is still there
+  });
+
   it('refuses a version without a proper hash or approval time', async () => {
     await expect(renderBulletinPdf({ ...version, sha256: 'abc' })).rejects.toThrow(/sha256/);
     await expect(renderBulletinPdf({ ...version, signOff: { ...version.signOff, approvedAt: 'never' } })).rejects.toThrow(/approvedAt/);
