@@ -22,6 +22,7 @@ export type Area = {
 export const AREAS: Area[] = [
   { to: '/objects', label: 'Objects', action: 'read', subject: 'TrackedObject' },
   { to: '/bulletins', label: 'Bulletins', action: 'read', subject: 'Bulletin' },
+  { to: '/releases', label: 'Releases', action: 'read', subject: 'Release' },
   { to: '/briefings', label: 'Briefings', action: 'read', subject: 'Briefing' },
   { to: '/admin/users', label: 'Users', action: 'read', subject: 'User' },
   { to: '/account', label: 'Account', action: 'read', subject: 'Account' },
@@ -64,6 +65,20 @@ export const TASKS: Task[] = [
     description: 'Send a signed-off version to a stakeholder list and follow who received and acknowledged it.',
     action: 'create',
     subject: 'Distribution',
+  },
+  {
+    to: '/releases',
+    title: 'Prepare a press release',
+    description: 'Turn an approved bulletin version into a statement for the public, with the same figures in plain language, and schedule its publication.',
+    action: 'create',
+    subject: 'Release',
+  },
+  {
+    to: '/releases?state=in_review',
+    title: 'Review public wording',
+    description: 'Check a release against its bulletin version and approve the wording, or ask for changes.',
+    action: 'approve',
+    subject: 'Release',
   },
   {
     to: '/briefings',

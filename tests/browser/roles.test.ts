@@ -24,11 +24,11 @@ import {
 } from './harness';
 
 const EXPECTED_NAV: Record<(typeof DEMO_ROLES)[number], string[]> = {
-  admin: ['Home', 'Objects', 'Bulletins', 'Users', 'Account'],
-  analyst: ['Home', 'Objects', 'Bulletins', 'Account'],
-  reviewer: ['Home', 'Objects', 'Bulletins', 'Account'],
-  communications: ['Home', 'Bulletins', 'Account'],
-  liaison: ['Home', 'Briefings', 'Account'],
+  admin: ['Home', 'Objects', 'Bulletins', 'Releases', 'Users', 'Account'],
+  analyst: ['Home', 'Objects', 'Bulletins', 'Releases', 'Account'],
+  reviewer: ['Home', 'Objects', 'Bulletins', 'Releases', 'Account'],
+  communications: ['Home', 'Bulletins', 'Releases', 'Account'],
+  liaison: ['Home', 'Releases', 'Briefings', 'Account'],
 };
 
 const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
@@ -36,6 +36,7 @@ const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
   Users: { path: '/admin/users', heading: /^Users$/ },
   Objects: { path: '/objects', heading: /^Objects$/ },
   Bulletins: { path: '/bulletins', heading: /^Bulletins$/ },
+  Releases: { path: '/releases', heading: /^Releases$/ },
   Briefings: { path: '/briefings', heading: /^Briefings$/ },
   Account: { path: '/account', heading: /^Your account$/ },
 };

@@ -49,7 +49,7 @@ export function ScheduleDialog({ release, action, open, onClose }: { release: Re
       }}
     >
       <p>The release stays under embargo until this time, then it is published on the public site and in the feed, and the press list is e-mailed.</p>
-      <div className="grid gap-3 text-ink sm:grid-cols-2">
+      <div className="grid gap-3 text-ink">
         <div>
           <label htmlFor="publish-at" className="mb-1 block text-sm font-medium">
             Date and time ({timeZone})

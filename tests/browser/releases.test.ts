@@ -1,0 +1,283 @@
+// Press releases in the browser (issue 7 item 7): communications staff start a release from an approved bulletin
+// version, see the standing public caution and the plain-language statements, write the wording with a copied figure
+// and submit it; a reviewer (not the author) approves the wording; communications staff, whose browser runs in the
+// Europe/Berlin time zone, schedule publication a few seconds ahead by entering the time on their own clock; the
+// release is absent from the public site, its JSON and the feed before that time, and the public page shows it after.
+// Sources: the agreed contract (issue 7); the demo asteroid's designed encounter (server/db/demo/make-nea.ts: about
+// 26 000 km from the centre of the Earth on 2034-09-17, i.e. well inside the Moon's distance); EU summer time
+// (Directive 2000/84/EC: from 01:00 UTC on the last Sunday of March to 01:00 UTC on the last Sunday of October;
+// Europe/Berlin is UTC+1 outside it and UTC+2 inside), computed below without Intl as an independent check of the
+// form's conversion.
+import { eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { users } from '../../server/db/schema';
+import { PUBLIC_CAUTION } from '../../shared/releases/plainLanguage';
+import { startTestServer } from '../helpers/testServer';
+import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+
+let server: Awaited<ReturnType<typeof startTestServer>>;
+let browser: Browser;
+
+beforeAll(async () => {
+  await ensureClientBuilt();
+  server = await startTestServer({ runner: { pollMs: 200 } });
+  // the durable release scheduler, as server/index.ts starts it
+  server.services.releaseScheduler.start();
+  browser = await launchBrowser();
+}, 300_000);
+
+afterAll(async () => {
+  server?.services.releaseScheduler.stop();
+  await browser?.close();
+  await server?.close();
+});
+
+const pad = (n: number, w = 2) => String(n).padStart(w, '0');
+
+/** Last Sunday of a month, 01:00 UTC, as epoch ms (EU summer-time switch instants). */
+function lastSundayOneUtc(year: number, month0: number): number {
+  const last = new Date(Date.UTC(year, month0 + 1, 0, 1, 0, 0));
+  return last.getTime() - last.getUTCDay() * 86_400_000;
+}
+
+/** Europe/Berlin wall-clock "YYYY-MM-DDTHH:mm:ss" of a UTC instant, from the EU rule (no Intl). */
+function berlinWall(utcMs: number): string {
+  const y = new Date(utcMs).getUTCFullYear();
+  const summer = utcMs >= lastSundayOneUtc(y, 2) && utcMs < lastSundayOneUtc(y, 9);
+  const d = new Date(utcMs + (summer ? 2 : 1) * 3_600_000);
+  return `${d.getUTCFullYear()}-${pad(d.getUTCMonth() + 1)}-${pad(d.getUTCDate())}T${pad(d.getUTCHours())}:${pad(d.getUTCMinutes())}:${pad(d.getUTCSeconds())}`;
+}
+
+async function apiJson(page: Page, method: 'GET' | 'POST', path: string, body?: unknown) {
+  const { csrfToken } = await (await page.request.get('/api/csrf')).json();
+  const res = method === 'GET' ? await page.request.get(path) : await page.request.post(path, { data: body, headers: { 'x-csrf-token': csrfToken } });
+  if (!res.ok()) throw new Error(`${method} ${path}: ${res.status()} ${await res.text()}`);
+  return res.json();
+}
+
+function actor(role: 'analyst' | 'reviewer') {
+  const u = server.db.select().from(users).where(eq(users.email, demoCredentials(role).email)).get();
+  if (!u) throw new Error(`no demo ${role}`);
+  return { id: u.id, role: u.role, name: u.name };
+}
+
+/**
+ * An approved bulletin about the demo asteroid with its miss distance as a linked figure: a linear run queued through
+ * the API (as the analyst), then the bulletin written, submitted and approved through the bulletin service.
+ */
+async function approvedBulletin(page: Page): Promise<{ id: number; title: string }> {
+  const objects = await apiJson(page, 'GET', '/api/objects?q=HSO-26-N4');
+  const objectId = objects.items[0].id as number;
+  const { solutions } = await apiJson(page, 'GET', `/api/objects/${objectId}/solutions`);
+  const queued = await apiJson(page, 'POST', '/api/runs', { solutionId: solutions[0].id, until: '2035-01-01T00:00:00Z', methods: ['linear'] });
+  const deadline = Date.now() + 150_000;
+  let run: { id: number; status: string; error?: string; result?: { approaches: { body: string; epochTdbJd: number }[] } };
+  for (;;) {
+    run = await apiJson(page, 'GET', `/api/runs/${queued.id}`);
+    if (run.status === 'done') break;
+    if (run.status === 'failed' || run.status === 'cancelled' || Date.now() > deadline) throw new Error(`run ${queued.id} ended ${run.status}: ${run.error}`);
+    await page.waitForTimeout(250);
+  }
+  const approach = run.result!.approaches.find((a) => a.body === 'earth')!;
+  const figure = { type: 'linkedFigure', attrs: { runId: run.id, quantity: 'missDistance', body: 'earth', epochTdbJd: approach.epochTdbJd } };
+  const title = 'HSO-26-N4 passes the Earth in September 2034';
+  const document = {
+    type: 'doc',
+    content: [{ type: 'paragraph', content: [{ type: 'text', text: 'Nominal miss distance from the centre of the Earth: ' }, figure, { type: 'text', text: '.' }] }],
+  };
+  const analyst = actor('analyst');
+  const b = server.services.bulletins.create({ objectId, title, document: document as never }, analyst);
+  server.services.bulletins.transition(b.id, { action: 'submit' }, analyst);
+  server.services.bulletins.transition(
+    b.id,
+    { action: 'approve', confirmedFigures: b.figures.map((f) => ({ index: f.index, runId: f.attrs.runId, quantity: f.attrs.quantity })) },
+    actor('reviewer'),
+  );
+  return { id: b.id, title };
+}
+
+async function signedIn(role: 'analyst' | 'reviewer' | 'communications', timezoneId = 'UTC') {
+  const context = await browser.newContext({ baseURL: server.url, viewport: { width: 1280, height: 900 }, locale: 'en-GB', timezoneId });
+  context.setDefaultTimeout(20_000);
+  const page = await context.newPage();
+  const errors = watchPageErrors(page, [401]);
+  const refused: string[] = [];
+  page.on('response', (r) => {
+    if (r.status() >= 400 && r.status() !== 401) refused.push(`${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
+  });
+  const { email, password } = demoCredentials(role);
+  await signIn(page, email, password);
+  await page.waitForURL((u) => u.pathname === '/');
+  return { context, page, errors, refused };
+}
+
+/** Poll `check` (each call may reload) until it returns true or the time is up. */
+async function eventually(what: string, check: () => Promise<boolean>, timeoutMs: number, everyMs = 500): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    if (await check()) return;
+    if (Date.now() > deadline) throw new Error(`Timed out after ${timeoutMs} ms waiting for: ${what}`);
+    await new Promise((r) => setTimeout(r, everyMs));
+  }
+}
+
+describe('press releases in the browser', () => {
+  it('communications schedule a reviewed release a few seconds ahead; the public page shows it only after its time', async () => {
+    // ---- an approved bulletin version to start from
+    const analyst = await signedIn('analyst');
+    const bulletin = await approvedBulletin(analyst.page);
+    await analyst.context.close();
+
+    // ---- communications staff start the release from version 1
+    const comms = await signedIn('communications');
+    let page = comms.page;
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Releases', exact: true }).click();
+    expect(await waitForHeading(page, 'Releases')).toBe('Releases');
+    expect(((await page.getByTestId('public-caution').textContent()) ?? '')).toContain(PUBLIC_CAUTION);
+    const bulletinSelect = page.getByLabel('Bulletin');
+    await bulletinSelect.locator('option', { hasText: bulletin.title }).first().waitFor({ state: 'attached' });
+    await bulletinSelect.selectOption(String(bulletin.id));
+    await page.getByLabel('Approved version').locator('option[value="1"]').waitFor({ state: 'attached' });
+    await page.getByLabel('Approved version').selectOption('1');
+    await screenshot(page, 'releases-new');
+    await page.getByRole('button', { name: 'Create release draft' }).click();
+    await page.waitForURL(/\/releases\/\d+$/);
+    const releaseId = Number(new URL(page.url()).pathname.split('/').pop());
+    expect(await waitForHeading(page, /:/, 20_000)).toMatch(/^\S+: /);
+
+    // the standing caution, the copied figure and its plain-language statement are on the draft screen
+    expect((await page.getByTestId('public-caution').textContent()) ?? '').toContain(PUBLIC_CAUTION);
+    const copied = page.getByTestId('copied-figures');
+    await copied.waitFor();
+    // about 26 000 km (make-nea.ts), copied with its unit as approved
+    expect(await copied.textContent()).toMatch(/2[56],\d{3} km/);
+    const statements = await page.getByTestId('plain-statement').allTextContents();
+    expect(statements.some((s) => /Moon's distance/.test(s))).toBe(true);
+    expect(((await page.getByTestId('plain-uncertainty').textContent()) ?? '').trim().length).toBeGreaterThan(20);
+
+    // the wording: headline, summary, a sentence with the copied figure inserted; autosaved with a new revision
+    const headline = `Asteroid HSO-26-N4 will pass the Earth safely in 2034 (${releaseId})`;
+    await page.getByLabel('Headline').fill(headline);
+    await page.getByLabel('Summary (list and feed)').fill('The office has assessed the close approach of asteroid HSO-26-N4 in September 2034.');
+    const editor = page.getByTestId('bulletin-editor');
+    await editor.click();
+    await page.keyboard.press('Control+End');
+    await page.keyboard.press('Enter');
+    await page.keyboard.type('At its closest the asteroid passes at ');
+    await copied.getByRole('button', { name: /Insert .* into the text/ }).first().click();
+    await page.keyboard.type('from the centre of the Earth.');
+    await page.waitForFunction(
+      () => {
+        const el = document.querySelector('[data-testid="release-save-status"]');
+        return el?.getAttribute('data-save-state') === 'saved' && !/revision 1$/.test(el.textContent ?? '');
+      },
+      null,
+      { timeout: 20_000 },
+    );
+    const saved = await apiJson(page, 'GET', `/api/releases/${releaseId}`);
+    expect(saved.title).toBe(headline);
+    expect(JSON.stringify(saved.document)).toContain('At its closest the asteroid passes at');
+    expect(JSON.stringify(saved.document)).toContain('"linkedFigure"');
+    await screenshot(page, 'release-draft');
+
+    await page.getByRole('button', { name: 'Submit the wording for review' }).click();
+    await page.getByRole('dialog', { name: 'Submit the wording for review' }).getByRole('button', { name: 'Submit the wording for review' }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'In review' }).first().waitFor();
+    // the author is never offered the approval
+    expect(await page.getByRole('button', { name: 'Approve the public wording' }).count()).toBe(0);
+    expect(comms.refused).toEqual([]);
+    expect(comms.errors).toEqual([]);
+    await comms.context.close();
+
+    // ---- a reviewer approves the public wording
+    const reviewer = await signedIn('reviewer');
+    page = reviewer.page;
+    await page.goto(`/releases/${releaseId}`);
+    expect(await waitForHeading(page, new RegExp(headline.replace(/[()]/g, '\\$&')), 20_000)).toContain(headline);
+    expect((await page.getByTestId('public-caution').textContent()) ?? '').toContain(PUBLIC_CAUTION);
+    expect(await page.getByTestId('release-wording').textContent()).toContain('At its closest the asteroid passes at');
+    await page.getByRole('button', { name: 'Approve the public wording' }).click();
+    const approveDialog = page.getByRole('dialog', { name: 'Approve the public wording' });
+    await approveDialog.getByLabel(/Comment/).fill('Same figures as bulletin version 1; wording is plain and careful.');
+    await screenshot(page, 'release-review');
+    await approveDialog.getByRole('button', { name: 'Approve the public wording' }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'Approved' }).first().waitFor();
+    expect(await page.getByRole('button', { name: /Schedule publication/ }).count()).toBe(0); // scheduling is communications' job
+    expect(reviewer.refused).toEqual([]);
+    expect(reviewer.errors).toEqual([]);
+    await reviewer.context.close();
+
+    // ---- communications staff in Berlin schedule it a few seconds ahead, on their own clock
+    const berlin = await signedIn('communications', 'Europe/Berlin');
+    page = berlin.page;
+    await page.goto(`/releases/${releaseId}`);
+    await page.getByRole('button', { name: 'Schedule publication…' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Schedule publication' });
+    expect(await dialog.getByLabel('Time zone').inputValue()).toBe('Europe/Berlin');
+    const publishAtMs = Math.ceil((Date.now() + 20_000) / 1000) * 1000;
+    const wall = berlinWall(publishAtMs);
+    await dialog.getByLabel(/Date and time/).fill(wall);
+    const utcText = `${new Date(publishAtMs).toISOString().slice(0, 19).replace('T', ' ')} UTC`;
+    await dialog.getByTestId('schedule-utc').filter({ hasText: utcText }).waitFor();
+    expect(await dialog.getByTestId('schedule-conversion').textContent()).toContain(`${wall.replace('T', ' ')} Europe/Berlin`);
+    await screenshot(page, 'release-schedule');
+    await dialog.getByRole('button', { name: 'Schedule', exact: true }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'Scheduled' }).first().waitFor();
+    const scheduled = await apiJson(page, 'GET', `/api/releases/${releaseId}`);
+    expect(scheduled.publication.publishAt).toBe(new Date(publishAtMs).toISOString());
+    expect(scheduled.publication.timeZone).toBe('Europe/Berlin');
+    expect(await page.getByTestId('publish-at-utc').textContent()).toBe(utcText);
+    expect((await page.getByTestId('publish-at-zone').first().textContent()) ?? '').toContain(`${wall.replace('T', ' ')} Europe/Berlin`);
+    await screenshot(page, 'release-scheduled');
+
+    // ---- before its time: absent from the public site, the public JSON and the feed (checked from a signed-out context)
+    const visitor = await newContext(browser, server.url);
+    const pub = await visitor.newPage();
+    const pubErrors = watchPageErrors(pub, [404]);
+    const checkedAt = Date.now();
+    const listBefore = await pub.request.get('/api/public/releases');
+    expect(listBefore.status()).toBe(200);
+    expect(JSON.stringify(await listBefore.json())).not.toContain(headline);
+    expect(await (await pub.request.get('/public/feed.atom')).text()).not.toContain(headline);
+    await pub.goto('/public');
+    expect(await pub.content()).not.toContain(headline);
+    // the absence above only means something if it was seen before the publication time
+    expect(Date.now(), 'the public routes were checked after the publication time (machine too slow)').toBeLessThan(publishAtMs);
+    expect(checkedAt).toBeLessThan(publishAtMs);
+
+    // ---- after its time: the public list links to the release page, which shows the wording and the caution
+    await eventually(
+      'the release on the public list',
+      async () => {
+        await pub.goto('/public');
+        return (await pub.getByRole('link', { name: headline }).count()) > 0;
+      },
+      90_000,
+      1000,
+    );
+    expect(Date.now()).toBeGreaterThanOrEqual(publishAtMs);
+    await pub.getByRole('link', { name: headline }).click();
+    await pub.waitForURL(/\/public\/releases\/[^/]+$/);
+    expect(((await pub.locator('h1').first().textContent()) ?? '').trim()).toBe(headline);
+    const body = (await pub.locator('body').textContent()) ?? '';
+    expect(body).toContain('At its closest the asteroid passes at');
+    expect(body).toMatch(/2[56],\d{3} km/);
+    expect(body.replace(/\s+/g, ' ')).toContain(PUBLIC_CAUTION);
+    await screenshot(pub, 'public-release');
+    expect(await (await pub.request.get('/public/feed.atom')).text()).toContain(headline);
+    expect(pubErrors).toEqual([]);
+    await visitor.close();
+
+    // the office's page follows: published, on time, with the public link
+    await page.getByTestId('release-state').filter({ hasText: 'Published' }).first().waitFor({ timeout: 60_000 });
+    const published = await apiJson(page, 'GET', `/api/releases/${releaseId}`);
+    expect(Date.parse(published.publication.publishedAt)).toBeGreaterThanOrEqual(publishAtMs);
+    expect(published.publication.publishedOnStart).toBe(false);
+    expect(await page.getByTestId('public-link').getAttribute('href')).toBe(`/public/releases/${published.publication.slug}`);
+    await screenshot(page, 'release-published');
+    expect(berlin.refused).toEqual([]);
+    expect(berlin.errors).toEqual([]);
+    await berlin.context.close();
+  }, 420_000);
+});
