@@ -9,6 +9,7 @@ import nodemailer from 'nodemailer';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mailOutbox } from '../../server/db/schema';
 import { createMailService } from '../../server/services/mail';
+import { render } from '../../server/services/templates';
 import { bulletinSchema, briefingDetailSchema, briefingListResponseSchema, distributionSchema, stakeholderListSchema, type Distribution } from '../../shared/schemas/bulletins';
 import { DEMO_USERS, startTestServer, type TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
@@ -162,8 +163,24 @@ describe('distribution', () => {
     const empty = await as.communications.request('POST', '/api/stakeholder-lists', { body: { name: 'Empty', kind: 'internal', members: [] } });
     expect(empty.status).toBe(201);
     expect((await as.communications.request('POST', '/api/distributions', { body: { bulletinId: b.id, version: 1, listId: empty.body.id } })).status).toBe(422);
+    // The same send twice at once (double click, two tabs): one distribution, one 409.
+    const [x, y] = await Promise.all([
+      as.communications.request('POST', '/api/distributions', { body: { bulletinId: b.id, version: 1, listId } }),
+      as.communications.request('POST', '/api/distributions', { body: { bulletinId: b.id, version: 1, listId } }),
+    ]);
+    expect([x.status, y.status].sort()).toEqual([201, 409]);
+    expect((await as.communications.get(`/api/distributions?bulletinId=${b.id}`)).body.distributions).toHaveLength(1);
     // A draft in review cannot be distributed.
     const draft = await as.analyst.request('POST', '/api/bulletins', { body: { objectId, title: 'Draft only' } });
     expect((await as.communications.request('POST', '/api/distributions', { body: { bulletinId: draft.body.id, version: 1, listId } })).status).toBe(409);
+  });
+
+  it('escapes what users typed in the HTML e-mail (OWASP XSS Prevention Cheat Sheet, rule 1) and not in the text one', () => {
+    const values = { officeName: 'HSPDO', marking: 'M', number: 'BUL-0001', version: '1', title: '<script>alert(1)</script>', objectDesignation: 'X', approvedAt: 'now', reviewerName: 'R', figures: '- a', summary: '<img src=x onerror=1>', pdfName: 'f.pdf', ackLine: '', sha256: 'h' };
+    const html = render('email/briefing.html', values);
+    expect(html).not.toContain('<script>');
+    expect(html).not.toContain('<img');
+    expect(html).toContain('&lt;script&gt;alert(1)&lt;/script&gt;');
+    expect(render('email/briefing.txt', values)).toContain('<script>alert(1)</script>');
   });
 });

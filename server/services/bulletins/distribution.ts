@@ -325,7 +325,10 @@ export function createDistributionService(db: Db, bulletinService: BulletinServi
         return { distributionId: d.id, outboxIds: ids };
       });
       // Delivery happens after the answer; the outbox keeps whatever cannot go out now.
-      void mail.deliver(outboxIds).catch((err) => console.warn('[distribution] delivery pass failed:', err));
+      void mail.deliver(outboxIds).catch((err) => {
+        // The outbox keeps the messages; the periodic pass retries them (a closed database means the app stopped).
+        if (db.$client.open) console.warn('[distribution] delivery pass failed:', err);
+      });
       return distributionOut(distributionId);
     },
 
