@@ -22,7 +22,8 @@ export function DistancePlot({ result, approachIndex, unit, caption }: { result:
     const low = series.lowKm ? series.lowKm.map(conv) : x.map(() => null);
     const high = series.highKm ? series.highKm.map(conv) : x.map(() => null);
     const surface = series.planetRadiusKm !== null ? x.map(() => conv(series.planetRadiusKm!)) : x.map(() => null);
-    const fmt = (v: number | null) => (v === null ? '—' : Math.abs(v) >= 1000 ? Math.round(v).toLocaleString('en-GB') : v.toPrecision(4));
+    // km to the kilometre (the curves are not more precise than that); other units to 4 significant digits.
+    const fmt = (v: number | null) => (v === null ? '—' : unit === 'km' || Math.abs(v) >= 1000 ? Math.round(v).toLocaleString('en-GB') : v.toPrecision(4));
     const width = Math.max(320, el.clientWidth);
     const opts: uPlot.Options = {
       width,
@@ -37,6 +38,15 @@ export function DistancePlot({ result, approachIndex, unit, caption }: { result:
         { label: `nominal (${label})`, stroke: C.nominal, width: 2, value: (_u, v) => fmt(v) },
         { label: `${series.body.charAt(0).toUpperCase() + series.body.slice(1)} surface`, stroke: C.capture, width: 1, dash: [5, 3], value: (_u, v) => fmt(v) },
       ],
+      // Start with the legend showing the values at the closest approach (0 h) instead of dashes.
+      hooks: {
+        ready: [
+          (u) => {
+            const mid = x.reduce((best, t, i) => (Math.abs(t) < Math.abs(x[best]) ? i : best), 0);
+            u.setCursor({ left: u.valToPos(x[mid], 'x'), top: u.valToPos(nominal[mid], 'y') });
+          },
+        ],
+      },
       bands: series.lowKm ? [{ series: [2, 1], fill: C.band }] : [],
       axes: [
         { label: `hours from the nominal closest approach (0 h = ${series.centreUtc.slice(0, 19).replace('T', ' ')} UTC)`, stroke: C.text },
@@ -44,6 +54,7 @@ export function DistancePlot({ result, approachIndex, unit, caption }: { result:
       ],
     };
     const plot = new uPlot(opts, [x, low, high, nominal, surface] as uPlot.AlignedData, el);
+
     const ro = new ResizeObserver(() => plot.setSize({ width: Math.max(320, el.clientWidth), height: 320 }));
     ro.observe(el);
     return () => {
