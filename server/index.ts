@@ -12,6 +12,7 @@ import { runMigrations } from './db/migrate';
 import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
 import { seedDemoBulletins } from './services/bulletins/demo';
+import { seedDemoReleases } from './services/releases/demo';
 import { queueDemoRuns } from './services/runs/demoRuns';
 import { createRunner } from './services/runs/runner';
 import { ROLE_LABELS } from '../shared/roles';
@@ -67,7 +68,10 @@ async function main(): Promise<void> {
   const demoBulletins = setInterval(() => {
     seedDemoBulletins(services, DEMO_OFFICE.emailDomain)
       .then((state) => {
-        if (state === 'done') clearInterval(demoBulletins);
+        // Demo releases (one published, one scheduled) follow from the approved demo bulletin (issue 7).
+        if (state !== 'done') return;
+        clearInterval(demoBulletins);
+        seedDemoReleases(services, DEMO_OFFICE.emailDomain);
       })
       .catch((err) => {
         clearInterval(demoBulletins);
