@@ -15,6 +15,7 @@ import { RunPage } from './pages/runs/RunPage';
 import { SignInPage } from './pages/signin/SignInPage';
 import { BulletinPage } from './pages/bulletins/BulletinPage';
 import { BulletinsPage } from './pages/bulletins/BulletinsPage';
+import { StakeholderListsPage } from './pages/bulletins/StakeholderListsPage';
 import { VersionPage } from './pages/bulletins/VersionPage';
 import { BriefingPage } from './pages/briefings/BriefingPage';
 import { BriefingsPage } from './pages/briefings/BriefingsPage';
@@ -78,6 +79,14 @@ export const router = createBrowserRouter([
               { index: true, element: <ReleasesPage /> },
               { path: ':id', element: <ReleasePage /> },
             ],
+          },
+          {
+            path: 'stakeholder-lists',
+            element: (
+              <RequireAbility action="read" subject="StakeholderList">
+                <StakeholderListsPage />
+              </RequireAbility>
+            ),
           },
           {
             path: 'briefings',

@@ -188,13 +188,23 @@ describe('bulletins in the browser', () => {
     // a government list with the demo liaison (admins manage stakeholder lists)
     const admin = await signedInPage('admin');
     const { users } = await apiJson(admin.page, 'GET', '/api/users');
-    const liaison = (users as { id: number; email: string }[]).find((u) => u.email === demoCredentials('liaison').email)!;
-    await apiJson(admin.page, 'POST', '/api/stakeholder-lists', {
-      name: 'Browser-test liaisons',
-      kind: 'government',
-      description: 'Test list',
-      members: [{ userId: liaison.id }],
-    });
+    const liaison = (users as { id: number; email: string; name: string }[]).find((u) => u.email === demoCredentials('liaison').email)!;
+    await admin.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Bulletins', exact: true }).click();
+    await admin.page.getByRole('link', { name: 'Stakeholder lists' }).click();
+    expect(await waitForHeading(admin.page, 'Stakeholder lists')).toBe('Stakeholder lists');
+    await admin.page.getByLabel('Name', { exact: true }).fill('Browser-test liaisons');
+    await admin.page.getByLabel('Kind').selectOption('government');
+    await admin.page.getByLabel(new RegExp(`^${liaison.name}`)).check();
+    await admin.page.getByLabel('Outside addresses').fill('not an address');
+    await admin.page.getByText('Cannot read: not an address').waitFor();
+    await admin.page.getByLabel('Outside addresses').fill('Partner duty desk <duty@partner.example>');
+    await admin.page.getByRole('button', { name: 'Create list' }).click();
+    const created = admin.page.locator('[data-testid^="stakeholder-list-"]', { hasText: 'Browser-test liaisons' });
+    await created.waitFor();
+    expect(await created.textContent()).toContain('2 recipients');
+    expect(await created.textContent()).toContain('duty@partner.example');
+    await screenshot(admin.page, 'stakeholder-lists');
+    expect(admin.errors).toEqual([]);
     await admin.context.close();
 
     const comms = await signedInPage('communications');
@@ -210,6 +220,7 @@ describe('bulletins in the browser', () => {
     await card.waitFor();
     await comms.page.getByTestId('bulletin-state').filter({ hasText: 'Distributed' }).first().waitFor();
     expect(await card.textContent()).toContain('not yet');
+    expect(await card.textContent()).toContain('outside address');
 
     const liaisonPage = await signedInPage('liaison');
     const lp = liaisonPage.page;

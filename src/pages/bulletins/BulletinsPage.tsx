@@ -8,7 +8,7 @@ import { useBulletins, useCreateBulletin } from '../../api/bulletins';
 import { fieldErrors } from '../../api/client';
 import { useObjects } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
-import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, SelectField, TextField, errorMessage } from '../../components/ui';
+import { Button, buttonClass, Card, ErrorState, LoadingState, Notice, PageHeader, SelectField, TextField, errorMessage } from '../../components/ui';
 import { BulletinStateBadge } from './BulletinState';
 
 function NewBulletinForm() {
@@ -58,7 +58,17 @@ export function BulletinsPage() {
   return (
     <div>
       <title>Bulletins · Tocsin</title>
-      <PageHeader title="Bulletins" intro="Statements about one object for officials: drafted by analysts, signed off by a second reviewer, then sent to stakeholders." />
+      <PageHeader
+        title="Bulletins"
+        intro="Statements about one object for officials: drafted by analysts, signed off by a second reviewer, then sent to stakeholders."
+        actions={
+          ability.can('read', 'StakeholderList') ? (
+            <Link to="/stakeholder-lists" className={buttonClass('secondary', 'no-underline')}>
+              Stakeholder lists
+            </Link>
+          ) : undefined
+        }
+      />
       <div className="space-y-6">
         {ability.can('create', 'Bulletin') && ability.can('read', 'TrackedObject') && <NewBulletinForm />}
         <section aria-labelledby="list-heading">
