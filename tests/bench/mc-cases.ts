@@ -13,7 +13,8 @@ import type { PlanetEphemeris } from '../../server/engine/dynamics/types';
 import { neaCase } from '../unit/engine-mc-cases';
 
 export function benchCase(kind: 'deep' | 'nea', eph: PlanetEphemeris, T0: number, years: number): { solution: OrbitSolution; bodies: EphemerisBody[] } {
-  const enc = T0 + Math.min(5 * 365.25 + 37, (years * 365.25) / 2);
+  // 5 years + 37 days after the start, as in the earlier benchmark (same deep case), or 30 days before the end.
+  const enc = T0 + Math.min(5 * 365.25 + 37, years * 365.25 - 30);
   const c =
     kind === 'deep'
       ? neaCase(eph, { startTdbDays: T0, encounterTdbDays: enc, missKm: 20_000, a: 1.5, e: 0.4, incDeg: 10 })
