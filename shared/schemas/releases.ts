@@ -169,7 +169,7 @@ export type Publication = z.infer<typeof publicationSchema>;
 
 export const releaseSummarySchema = z.object({
   id: z.number().int(),
-  /** Office release number, e.g. "HSPDO-PR-0001". */
+  /** Office release number, e.g. "REL-0001". */
   number: z.string(),
   title: z.string(),
   summary: z.string(),

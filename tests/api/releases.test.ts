@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { releaseEvents } from '../../server/db/schema';
 import { createReleaseScheduler } from '../../server/services/releases/scheduler';
 import { releaseSlug } from '../../server/services/releases/service';
-import { PUBLIC_CAUTION } from '../../shared/releases/plainLanguage';
+import { PUBLIC_CAUTION, roundForPublic } from '../../shared/releases/plainLanguage';
 import { bulletinVersionDetailSchema } from '../../shared/schemas/bulletins';
 import { publicReleaseListResponseSchema, publicReleaseSchema, releaseSchema } from '../../shared/schemas/releases';
 import { startTestServer, type TestServer } from '../helpers/testServer';
@@ -47,6 +47,9 @@ describe('drafting', () => {
     expect(stmt.figureIndex).toBe(ip.index);
     expect(stmt.text).toMatch(/^about 1 in [\d,]+/);
     expect(r.plainLanguage.caution).toBe(PUBLIC_CAUTION);
+    // The starting summary states the odds without cutting them at the thousands separator.
+    // (1/p to two significant digits, grouped: e.g. 1/8.3e-5 -> "12,000").
+    expect(r.summary).toBe(`${v.objectDesignation}: chance of impact about 1 in ${roundForPublic(1 / (ip.value.value as number))}.`);
     expect(r.plainLanguage.uncertainty.length).toBeGreaterThan(20);
     // The starting text quotes the copied figures as linked figures.
     expect(JSON.stringify(r.document)).toContain('"linkedFigure"');

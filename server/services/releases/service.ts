@@ -56,6 +56,14 @@ export function releaseSlug(number: string, title: string): string {
   return words ? `${number.toLowerCase()}-${words}` : number.toLowerCase();
 }
 
+/** "HSO-26-N4: chance of impact about 1 in 12,000." (the odds without the interval and the chance of missing). */
+export function initialSummary(designation: string, statements: readonly { quantity: string; text: string }[]): string {
+  const ip = statements.find((s) => s.quantity === 'impactProbability');
+  if (!ip) return '';
+  const odds = ip.text.replace(/( \(|, that is).*$/, '');
+  return `${designation}: chance of impact ${odds}.`;
+}
+
 function userRef(db: Reader, id: number | null): { id: number; name: string } | null {
   if (id === null) return null;
   const u = db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, id)).get();
@@ -311,9 +319,7 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
             bulletinSha256: v.sha256,
             objectId: content.objectId,
             title: body.title ?? content.title,
-            summary: plain.statements.find((s) => s.quantity === 'impactProbability')
-              ? `${content.objectDesignation}: chance of impact ${plain.statements.find((s) => s.quantity === 'impactProbability')!.text.split(',')[0]}.`
-              : '',
+            summary: initialSummary(content.objectDesignation, plain.statements),
             documentJson: JSON.stringify(document),
             figuresJson: JSON.stringify(figures),
             authorId: actor.id,
