@@ -130,6 +130,44 @@ describe('navigation and the stale-figure reason', () => {
   });
 });
 
+describe('document tables', () => {
+  it('places cells with colspan and rowspan on the column grid and uses the editor’s column widths', async () => {
+    const t = (text: string) => ({ type: 'text' as const, text });
+    const cell = (text: string, attrs: Record<string, unknown> = {}, type: 'tableCell' | 'tableHeader' = 'tableCell') => ({
+      type,
+      attrs,
+      content: [{ type: 'paragraph' as const, content: [t(text)] }],
+    });
+    const v = structuredClone(version);
+    v.document = {
+      type: 'doc',
+      content: [
+        {
+          type: 'table',
+          content: [
+            { type: 'tableRow', content: [cell('Quantity', { colwidth: [200] }, 'tableHeader'), cell('Two methods', { colspan: 2, colwidth: [120, 120] }, 'tableHeader')] },
+            { type: 'tableRow', content: [cell('Impact probability', { rowspan: 2 }), cell('2.0e-7'), cell('below 3e-4')] },
+            { type: 'tableRow', content: [cell('linear'), cell('MonteCarlo')] },
+            { type: 'tableRow', content: [cell('Palermo'), cell('both methods agree', { colspan: 2 })] },
+          ],
+        },
+      ],
+    };
+    const f = save('spans.pdf', await renderBulletinPdf(v));
+    const lines = run('pdftotext', ['-layout', '-enc', 'UTF-8', '-f', '1', '-l', '1', f, '-']).split('\n');
+    const line = (s: string) => lines.find((l) => l.includes(s))!;
+    // the row under a rowspan starts in the second column: its cells line up with the row above
+    expect(line('linear').indexOf('linear')).toBe(line('2.0e-7').indexOf('2.0e-7'));
+    expect(line('MonteCarlo').indexOf('MonteCarlo')).toBe(line('below 3e-4').indexOf('below 3e-4'));
+    // a colspan cell starts in its first column
+    expect(line('both methods agree').indexOf('both')).toBe(line('2.0e-7').indexOf('2.0e-7'));
+    // column widths 200 : 120 : 120 px: the second column starts at 200/440 of the row, the third at 320/440
+    const start = line('Impact probability').indexOf('Impact');
+    const c2 = line('2.0e-7').indexOf('2.0e-7') - start, c3 = line('below 3e-4').indexOf('below') - start;
+    expect(c2 / c3).toBeCloseTo(200 / 320, 1);
+  });
+});
+
 describe('images', () => {
   it('embeds a data-URL image from the document and names an external one instead of fetching it', () => {
     // pdfimages -list: header lines, then one line per image with its pixel size

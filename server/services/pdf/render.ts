@@ -189,16 +189,64 @@ function docTable(ctx: Ctx, node: PdfDocNode, box: Box): void {
   };
   const first = rows[0].content ?? [];
   const headerRow = first.length > 0 && first.every((c) => c.type === 'tableHeader');
-  const cols = Math.max(...rows.map((r) => (r.content ?? []).length));
-  const norm = (r: PdfDocNode): Run[][] => {
-    const cells = (r.content ?? []).map(cellRuns);
-    while (cells.length < cols) cells.push([]);
-    return cells;
-  };
+  const num = (v: unknown, d: number) => (typeof v === 'number' && Number.isInteger(v) && v >= 1 ? Math.min(v, 50) : d);
+  // Place cells on a grid: colspan widens a cell; a rowspan keeps its columns free in the rows below (the later rows
+  // of a merged cell are left blank, drawn as ordinary cells).
+  const occupied: number[] = []; // per column: rows still covered by a rowspan from above
+  const grid: { cells: Run[][]; spans: number[] }[] = [];
+  let cols = 1;
+  for (const r of rows) {
+    const cells: Run[][] = [];
+    const spans: number[] = [];
+    let col = 0;
+    const skipCovered = () => {
+      while ((occupied[col] ?? 0) > 0) {
+        cells.push([]);
+        spans.push(1);
+        col++;
+      }
+    };
+    for (const c of r.content ?? []) {
+      skipCovered();
+      const colspan = num(c.attrs?.colspan, 1);
+      const rowspan = num(c.attrs?.rowspan, 1);
+      cells.push(cellRuns(c));
+      spans.push(colspan);
+      for (let k = 0; k < colspan; k++) occupied[col + k] = Math.max(occupied[col + k] ?? 0, rowspan);
+      col += colspan;
+    }
+    skipCovered();
+    cols = Math.max(cols, col);
+    grid.push({ cells, spans });
+    for (let k = 0; k < occupied.length; k++) if ((occupied[k] ?? 0) > 0) occupied[k]--;
+  }
+  for (const g of grid) {
+    const used = g.spans.reduce((a, b) => a + b, 0);
+    for (let k = used; k < cols; k++) {
+      g.cells.push([]);
+      g.spans.push(1);
+    }
+  }
+  // Column widths from the editor's resized widths (colwidth, px) when the first row gives them all.
+  const widthsPx: number[] = [];
+  for (const c of first) {
+    const cw = c.attrs?.colwidth;
+    const span = num(c.attrs?.colspan, 1);
+    for (let k = 0; k < span; k++) widthsPx.push(Array.isArray(cw) && typeof cw[k] === 'number' && cw[k] > 0 ? cw[k] : NaN);
+  }
+  const shares = widthsPx.length === cols && widthsPx.every((w) => Number.isFinite(w)) ? widthsPx : Array(cols).fill(1);
+  const body = grid.slice(headerRow ? 1 : 0);
   drawTable(
     ctx.doc,
     ctx.fonts,
-    { shares: Array(cols).fill(1), header: headerRow ? norm(rows[0]) : null, rows: rows.slice(headerRow ? 1 : 0).map(norm), size: FONT_SIZE.table + 0.5 },
+    {
+      shares,
+      header: headerRow ? grid[0].cells : null,
+      headerSpans: headerRow ? grid[0].spans : undefined,
+      rows: body.map((g) => g.cells),
+      rowSpans: body.map((g) => g.spans),
+      size: FONT_SIZE.table + 0.5,
+    },
     box,
   );
 }

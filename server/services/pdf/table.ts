@@ -14,6 +14,9 @@ export type TableSpec = {
   rows: Cell[][];
   size?: number;
   align?: ('left' | 'right' | 'center')[];
+  /** Columns each cell spans (default 1), parallel to header / rows. */
+  headerSpans?: number[];
+  rowSpans?: number[][];
 };
 
 function bottomLimit(doc: PDFKit.PDFDocument): number {
@@ -28,20 +31,35 @@ export function drawTable(doc: PDFKit.PDFDocument, fonts: FontSet, spec: TableSp
   const xs = widths.map((_, i) => box.x + widths.slice(0, i).reduce((a, b) => a + b, 0));
   const opts = { size, lineGap: 0.5 };
 
-  const rowHeight = (cells: Cell[]) =>
-    Math.max(...cells.map((c, i) => paragraphHeight(doc, c, widths[i] - 2 * pad, opts))) + 2 * pad + 1;
+  /** x, width and first column of each cell of a row, from the spans. */
+  const layout = (cells: Cell[], spans: number[] | undefined) => {
+    let col = 0;
+    return cells.map((_, i) => {
+      const span = Math.max(1, Math.min(spans?.[i] ?? 1, widths.length - col));
+      const at = { col, x: xs[col] ?? box.x + box.width, width: widths.slice(col, col + span).reduce((a, b) => a + b, 0) };
+      col += span;
+      return at;
+    });
+  };
+
+  const rowHeight = (cells: Cell[], spans?: number[]) => {
+    const at = layout(cells, spans);
+    return Math.max(0, ...cells.map((c, i) => (at[i].width > 2 * pad ? paragraphHeight(doc, c, at[i].width - 2 * pad, opts) : 0))) + 2 * pad + 1;
+  };
 
   let first = true; // the first row drawn on a page gets a top rule
-  const drawRow = (cells: Cell[], header: boolean, stripe: boolean) => {
-    const h = rowHeight(cells);
+  const drawRow = (cells: Cell[], header: boolean, stripe: boolean, spans?: number[]) => {
+    const h = rowHeight(cells, spans);
+    const at = layout(cells, spans);
     const y = doc.y;
     if (header) doc.rect(box.x, y, box.width, h).fill(COLOR.tableHeaderFill);
     else if (stripe) doc.rect(box.x, y, box.width, h).fill(COLOR.stripeFill);
     cells.forEach((c, i) => {
+      if (at[i].width <= 2 * pad) return; // more cells than columns: nothing to draw into
       doc.y = y + pad;
-      writeParagraph(doc, fonts, header ? c.map((r) => ({ ...r, bold: true })) : c, { x: xs[i] + pad, width: widths[i] - 2 * pad }, {
+      writeParagraph(doc, fonts, header ? c.map((r) => ({ ...r, bold: true })) : c, { x: at[i].x + pad, width: at[i].width - 2 * pad }, {
         ...opts,
-        align: spec.align?.[i] ?? 'left',
+        align: spec.align?.[at[i].col] ?? 'left',
       });
     });
     doc.lineWidth(0.5).strokeColor(COLOR.tableBorder);
@@ -61,13 +79,14 @@ export function drawTable(doc: PDFKit.PDFDocument, fonts: FontSet, spec: TableSp
     return false;
   };
 
-  if (spec.header) {
-    ensure(rowHeight(spec.header) + (spec.rows[0] ? rowHeight(spec.rows[0]) : 0));
-    drawRow(spec.header, true, false);
+  const header = spec.header;
+  if (header) {
+    ensure(rowHeight(header, spec.headerSpans) + (spec.rows[0] ? rowHeight(spec.rows[0], spec.rowSpans?.[0]) : 0));
+    drawRow(header, true, false, spec.headerSpans);
   }
   spec.rows.forEach((row, r) => {
-    if (ensure(rowHeight(row)) && spec.header) drawRow(spec.header, true, false);
-    drawRow(row, false, r % 2 === 1);
+    if (ensure(rowHeight(row, spec.rowSpans?.[r])) && header) drawRow(header, true, false, spec.headerSpans);
+    drawRow(row, false, r % 2 === 1, spec.rowSpans?.[r]);
   });
   doc.y += SPACING.blockGapPt;
 }
