@@ -3,8 +3,10 @@
 // public route (JSON, pages, Atom feed) before that; role refusals.
 // Sources: the agreed contract (issue 7 items 1-5 and 7, resource list); RFC 4287 (Atom: feed/entry/id/updated);
 // ISO 8601 / RFC 3339 (a time with an offset denotes one UTC instant); RFC 9110 §15.5.4 (403), §15.5.2 (401),
-// §15.5.5 (404), §15.5.10 (409); transactional outbox and exactly-once by conditional UPDATE: common practice, no source.
+// §15.5.5 (404), §15.5.10 (409); XML well-formedness checked with saxes (a strict XML 1.0 parser, installed as a
+// dependency of jsdom); transactional outbox and exactly-once by conditional UPDATE: common practice, no source.
 import { eq } from 'drizzle-orm';
+import { SaxesParser } from 'saxes';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { releaseEvents } from '../../server/db/schema';
 import { createReleaseScheduler } from '../../server/services/releases/scheduler';
@@ -220,8 +222,8 @@ describe('scheduling and the public site', () => {
     expect(view.list + view.listPage + view.feed).not.toContain(title);
   }, 60_000);
 
-  it('publishes by an injected clock: not a millisecond early, once at the time', async () => {
-    const title = `Clock check ${Date.now()}`;
+  it('publishes by an injected clock: not a millisecond early, once at the time; the public markup is escaped and the feed well-formed', async () => {
+    const title = `Clock check <b>"quotes" & ampersands</b> ${Date.now()}`;
     const r = await approvedRelease(as, bulletinId, title);
     const dueMs = Date.now() + 7 * 86_400_000; // far enough that the real scheduler never reaches it
     expect((await schedule(as.communications, r.id, new Date(dueMs).toISOString())).status).toBe(200);
@@ -235,5 +237,32 @@ describe('scheduling and the public site', () => {
     expect(out[0]).toMatchObject({ lateByMs: 250, onStart: false });
     expect(sched.tick().filter((p) => p.id === r.id)).toHaveLength(0);
     expect(publishEvents(r.id)).toHaveLength(1);
+
+    // Markup in a title is text on the page, in the list and in the feed.
+    const view = await publicView(srv.url, out[0].slug);
+    const escaped = title.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+    expect(view.pageBody).toContain(`<h1>${escaped}</h1>`);
+    expect(view.pageBody).not.toContain('<b>"quotes"');
+    expect(view.feed).toContain(`<title>${escaped}</title>`);
+    // The feed is well-formed XML (strict parser) and each entry has the elements RFC 4287 §4.1.2 requires.
+    const entries: Record<string, number>[] = [];
+    const feedElements = new Set<string>();
+    let depth = 0;
+    const parser = new SaxesParser({ xmlns: true });
+    parser.on('opentag', (t) => {
+      depth++;
+      if (t.local === 'entry') entries.push({});
+      else if (depth === 2) feedElements.add(t.local);
+      else if (depth === 3 && entries.length) entries[entries.length - 1][t.local] = (entries[entries.length - 1][t.local] ?? 0) + 1;
+    });
+    parser.on('closetag', () => {
+      depth--;
+    });
+    parser.write(view.feed).close();
+    for (const el of ['id', 'title', 'updated', 'author', 'link']) expect(feedElements.has(el), el).toBe(true);
+    expect(entries.length).toBeGreaterThanOrEqual(2);
+    for (const e of entries) for (const el of ['id', 'title', 'updated', 'link', 'content']) expect(e[el], el).toBe(1);
+    // Its press e-mail has gone out (before the server closes).
+    await until('the press e-mail', () => srv.mail.messages(), (m) => m.some((x) => x.subject.includes(title)), 30_000);
   });
 });
