@@ -3,26 +3,13 @@
 import { useState } from 'react';
 import { Link } from 'react-router';
 import { ROLE_LABELS, isRole } from '../../../shared/roles';
-import { STAKEHOLDER_KIND_LABELS, STAKEHOLDER_KINDS, type StakeholderMemberInput } from '../../../shared/schemas/bulletins';
+import { STAKEHOLDER_KIND_LABELS, STAKEHOLDER_KINDS } from '../../../shared/schemas/bulletins';
 import { fieldErrors } from '../../api/client';
 import { useCreateStakeholderList, useStakeholderLists } from '../../api/stakeholderLists';
 import { useUsers } from '../../api/users';
 import { useAppAbility } from '../../auth/useAppAbility';
+import { parseOutsideAddresses } from './addresses';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, SelectField, TextField, errorMessage } from '../../components/ui';
-
-/** "Name <address>" per line (or a bare address, named after it). Returns the members and the lines it could not read. */
-export function parseOutsideAddresses(text: string): { members: StakeholderMemberInput[]; bad: string[] } {
-  const members: StakeholderMemberInput[] = [];
-  const bad: string[] = [];
-  for (const raw of text.split('\n')) {
-    const line = raw.trim();
-    if (!line) continue;
-    const m = /^(.*?)\s*<([^<>\s]+@[^<>\s]+)>$/.exec(line) ?? /^()([^<>\s]+@[^<>\s]+)$/.exec(line);
-    if (!m) bad.push(line);
-    else members.push({ email: m[2], name: m[1].trim() || m[2] });
-  }
-  return { members, bad };
-}
 
 function NewListForm() {
   const users = useUsers();
