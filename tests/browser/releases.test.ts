@@ -56,7 +56,7 @@ async function apiJson(page: Page, method: 'GET' | 'POST', path: string, body?: 
   return res.json();
 }
 
-function actor(role: 'analyst' | 'reviewer') {
+function actor(role: 'analyst' | 'reviewer' | 'communications') {
   const u = server.db.select().from(users).where(eq(users.email, demoCredentials(role).email)).get();
   if (!u) throw new Error(`no demo ${role}`);
   return { id: u.id, role: u.role, name: u.name };
@@ -122,11 +122,15 @@ async function eventually(what: string, check: () => Promise<boolean>, timeoutMs
   }
 }
 
+/** The approved bulletin of the first test (the second makes its own when run alone). */
+let sharedBulletin: { id: number; title: string } | null = null;
+
 describe('press releases in the browser', () => {
   it('communications schedule a reviewed release a few seconds ahead; the public page shows it only after its time', async () => {
     // ---- an approved bulletin version to start from
     const analyst = await signedIn('analyst');
     const bulletin = await approvedBulletin(analyst.page);
+    sharedBulletin = bulletin;
     await analyst.context.close();
 
     // ---- communications staff start the release from version 1
@@ -280,4 +284,84 @@ describe('press releases in the browser', () => {
     expect(berlin.errors).toEqual([]);
     await berlin.context.close();
   }, 420_000);
+  it('communications reschedule in their own zone, take a release off the schedule and cancel it; it never appears publicly', async () => {
+    if (!sharedBulletin) {
+      const analyst = await signedIn('analyst');
+      sharedBulletin = await approvedBulletin(analyst.page);
+      await analyst.context.close();
+    }
+    const title = 'Second statement on HSO-26-N4, never to be published';
+    const comms = actor('communications');
+    const created = server.services.releases.create({ bulletinId: sharedBulletin.id, version: 1, title }, comms);
+    server.services.releases.transition(created.id, { action: 'submit' }, comms);
+    server.services.releases.transition(created.id, { action: 'approve' }, actor('reviewer'));
+
+    // communications staff in New York: US daylight time (UTC-4) in July, standard time (UTC-5) in December
+    const ny = await signedIn('communications', 'America/New_York');
+    const page = ny.page;
+    await page.goto(`/releases/${created.id}`);
+    await page.getByTestId('release-state').filter({ hasText: 'Approved' }).first().waitFor();
+    expect((await page.getByTestId('public-caution').textContent()) ?? '').toContain(PUBLIC_CAUTION);
+
+    await page.getByRole('button', { name: 'Schedule publication…' }).click();
+    let dialog = page.getByRole('dialog', { name: 'Schedule publication' });
+    expect(await dialog.getByLabel('Time zone').inputValue()).toBe('America/New_York');
+    await dialog.getByLabel(/Date and time/).fill('2030-07-04T09:30:00');
+    await dialog.getByTestId('schedule-utc').filter({ hasText: '2030-07-04 13:30:00 UTC' }).waitFor();
+    await dialog.getByRole('button', { name: 'Schedule', exact: true }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'Scheduled' }).first().waitFor();
+    let stored = await apiJson(page, 'GET', `/api/releases/${created.id}`);
+    expect(stored.publication.publishAt).toBe('2030-07-04T13:30:00.000Z');
+    expect(stored.publication.timeZone).toBe('America/New_York');
+
+    // reschedule: the form opens on the time as entered, in the zone it was entered in
+    await page.getByRole('button', { name: 'Reschedule…' }).click();
+    dialog = page.getByRole('dialog', { name: 'Reschedule' });
+    // (Chromium normalises a datetime-local value with zero seconds to HH:mm)
+    expect(await dialog.getByLabel(/Date and time/).inputValue()).toMatch(/^2030-07-04T09:30(:00)?$/);
+    await dialog.getByLabel(/Date and time/).fill('2030-12-04T09:30:00');
+    await dialog.getByTestId('schedule-utc').filter({ hasText: '2030-12-04 14:30:00 UTC' }).waitFor();
+    await dialog.getByRole('button', { name: 'Reschedule', exact: true }).click();
+    await page.getByTestId('publish-at-utc').filter({ hasText: '2030-12-04 14:30:00 UTC' }).waitFor();
+    stored = await apiJson(page, 'GET', `/api/releases/${created.id}`);
+    expect(stored.publication.publishAt).toBe('2030-12-04T14:30:00.000Z');
+    expect((await page.getByTestId('publish-at-zone').first().textContent()) ?? '').toContain('2030-12-04 09:30:00 America/New_York (UTC-05:00)');
+    await screenshot(page, 'release-rescheduled');
+
+    // off the schedule, back to approved
+    await page.getByRole('button', { name: 'Take off the schedule' }).click();
+    dialog = page.getByRole('dialog', { name: 'Take off the schedule' });
+    await dialog.getByRole('button', { name: 'Take off the schedule' }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'Approved' }).first().waitFor();
+
+    // cancel: a reason is required
+    await page.getByRole('button', { name: 'Cancel the release' }).click();
+    dialog = page.getByRole('dialog', { name: 'Cancel the release' });
+    const confirm = dialog.getByRole('button', { name: 'Cancel the release' });
+    expect(await confirm.isDisabled()).toBe(true);
+    await dialog.getByLabel(/Comment/).fill('Superseded by the first statement; agreed with the ministry.');
+    expect(await confirm.isDisabled()).toBe(false);
+    await confirm.click();
+    await page.getByTestId('release-state').filter({ hasText: 'Cancelled' }).first().waitFor();
+    expect(await page.getByRole('button', { name: /Schedule publication|Reschedule|Cancel the release/ }).count()).toBe(0);
+    await screenshot(page, 'release-cancelled');
+    expect(ny.refused).toEqual([]);
+    expect(ny.errors).toEqual([]);
+    await ny.context.close();
+
+    // nothing of it on the public side
+    const list = await fetch(`${server.url}/api/public/releases`);
+    expect(list.status).toBe(200);
+    expect(await list.text()).not.toContain(title);
+    expect(await (await fetch(`${server.url}/public/feed.atom`)).text()).not.toContain(title);
+    expect(await (await fetch(`${server.url}/public`)).text()).not.toContain(title);
+
+    // an analyst reads the release but is offered no action (the route table's ability for transitions)
+    const analyst = await signedIn('analyst');
+    await analyst.page.goto(`/releases/${created.id}`);
+    await analyst.page.getByTestId('release-state').filter({ hasText: 'Cancelled' }).first().waitFor();
+    expect(await analyst.page.locator('main').getByRole('button').count()).toBe(0);
+    expect(analyst.errors).toEqual([]);
+    await analyst.context.close();
+  }, 300_000);
 });

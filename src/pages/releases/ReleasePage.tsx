@@ -10,7 +10,7 @@ import type { Role } from '../../../shared/roles';
 import { findRoute } from '../../../shared/routes';
 import type { Release } from '../../../shared/schemas/releases';
 import { formatUtc } from '../../../shared/format';
-import { useRelease, useReleaseTransition } from '../../api/releases';
+import { useRelease, useReleaseTransition, useReleaseVersion } from '../../api/releases';
 import { useAuth } from '../../auth/AuthProvider';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { ConfirmDialog } from '../../components/ConfirmDialog';
@@ -101,6 +101,27 @@ function ReadOnlyWording({ release }: { release: Release }) {
   );
 }
 
+/** While a new version of the wording is drafted, the approved one stays as it is: shown folded, with its hash. */
+function ApprovedVersion({ release }: { release: Release }) {
+  const q = useReleaseVersion(release.id, release.latestVersion);
+  const source = useFrozenFigureSource(q.data?.figures ?? []);
+  if (!q.data) return null;
+  const v = q.data;
+  return (
+    <details className="rounded-lg border border-rule bg-white px-5 py-3" data-testid="approved-version">
+      <summary className="cursor-pointer text-sm font-medium">
+        Approved version {v.version} ({v.reviewer ? `approved by ${v.reviewer.name}, ` : ''}
+        {formatUtc(v.approvedAt, { seconds: false })}) · <code className="text-xs">{v.sha256.slice(0, 12)}…</code>
+      </summary>
+      <div className="mt-3">
+        <h3 className="font-serif text-lg font-bold">{v.title}</h3>
+        {v.summary && <p className="mt-1 font-serif text-ink-soft">{v.summary}</p>}
+        <DocumentView document={v.document} source={source} />
+      </div>
+    </details>
+  );
+}
+
 function History({ release }: { release: Release }) {
   if (release.events.length === 0) return null;
   return (
@@ -157,12 +178,16 @@ export function ReleasePage() {
       <PageHeader
         title={`${r.number}: ${r.title}`}
         intro={
-          <p className="flex flex-wrap items-center gap-x-3 gap-y-1">
-            <ReleaseStateBadge state={r.state} />
-            <SourceLine source={r.source} />
-            {r.author && <span>· by {r.author.name}</span>}
-            {versionLabel && <span>· {versionLabel}</span>}
-          </p>
+          <>
+            <p className="flex flex-wrap items-center gap-x-3 gap-y-1">
+              <ReleaseStateBadge state={r.state} />
+              {r.author && <span>by {r.author.name}</span>}
+              {versionLabel && <span>· {versionLabel}</span>}
+            </p>
+            <p className="mt-1 text-sm">
+              <SourceLine source={r.source} />
+            </p>
+          </>
         }
         actions={
           <>
@@ -192,6 +217,7 @@ export function ReleasePage() {
             <CopiedFigures figures={r.figures} source={r.source} />
           </div>
         )}
+        {r.latestVersion !== null && (r.state === 'draft' || r.state === 'in_review' || r.state === 'changes_requested') && <ApprovedVersion release={r} />}
         <PlainLanguagePanel plain={r.plainLanguage} />
         <History release={r} />
       </div>
