@@ -71,6 +71,13 @@ function VersionsSection({ bulletin }: { bulletin: Bulletin }) {
   );
 }
 
+/** Workflow actions by their table label; the service's own events (creation, saves) in plain words. */
+function eventLabel(action: string): string {
+  if (action in BULLETIN_ACTION_LABELS) return BULLETIN_ACTION_LABELS[action as BulletinAction];
+  const own: Record<string, string> = { create: 'Created', supersede: 'Superseded', acknowledge: 'Acknowledged' };
+  return own[action] ?? action.replace(/_/g, ' ');
+}
+
 function History({ bulletin }: { bulletin: Bulletin }) {
   if (bulletin.events.length === 0) return null;
   return (
@@ -81,7 +88,7 @@ function History({ bulletin }: { bulletin: Bulletin }) {
       <ol className="space-y-2 border-l-2 border-rule pl-4 text-sm">
         {[...bulletin.events].reverse().map((e) => (
           <li key={e.id}>
-            <span className="font-medium">{e.action in BULLETIN_ACTION_LABELS ? BULLETIN_ACTION_LABELS[e.action as BulletinAction] : e.action}</span>
+            <span className="font-medium">{eventLabel(e.action)}</span>
             {e.toState && <span className="text-ink-soft"> → {BULLETIN_STATE_LABELS[e.toState]}</span>}
             {e.version !== null && <span className="text-ink-soft"> · v{e.version}</span>}
             <span className="text-ink-soft">
@@ -127,7 +134,7 @@ export function BulletinPage() {
               About{' '}
               {ability.can('read', 'TrackedObject') ? <Link to={`/objects/${b.objectId}`}>{b.objectDesignation}</Link> : b.objectDesignation}
             </span>
-            <span>· {b.author ? `by ${b.author.name}` : ''}</span>
+            {b.author && <span>· by {b.author.name}</span>}
             <span>
               · {b.state === 'approved' || b.state === 'distributed' || b.state === 'superseded' ? `version ${b.latestVersion}` : `drafting version ${b.draftVersion}, revision ${b.revision}`}
             </span>
