@@ -124,6 +124,7 @@ async function eventually(what: string, check: () => Promise<boolean>, timeoutMs
 
 /** The approved bulletin of the first test (the second makes its own when run alone). */
 let sharedBulletin: { id: number; title: string } | null = null;
+let publishedReleaseId = 0;
 
 describe('press releases in the browser', () => {
   it('communications schedule a reviewed release a few seconds ahead; the public page shows it only after its time', async () => {
@@ -148,6 +149,7 @@ describe('press releases in the browser', () => {
     await page.getByRole('button', { name: 'Create release draft' }).click();
     await page.waitForURL(/\/releases\/\d+$/);
     const releaseId = Number(new URL(page.url()).pathname.split('/').pop());
+    publishedReleaseId = releaseId;
     expect(await waitForHeading(page, /:/, 20_000)).toMatch(/^\S+: /);
 
     // the standing caution, the copied figure and its plain-language statement are on the draft screen
@@ -361,6 +363,22 @@ describe('press releases in the browser', () => {
     await analyst.page.goto(`/releases/${created.id}`);
     await analyst.page.getByTestId('release-state').filter({ hasText: 'Cancelled' }).first().waitFor();
     expect(await analyst.page.locator('main').getByRole('button').count()).toBe(0);
+    // the list: the published release links to its public page, the cancelled one says so
+    await analyst.page.goto('/releases');
+    const cancelledRow = analyst.page.getByTestId(`release-row-${created.id}`);
+    await cancelledRow.waitFor();
+    expect(await cancelledRow.getByTestId('release-state').textContent()).toBe('Cancelled');
+    if (publishedReleaseId) {
+      const row = analyst.page.getByTestId(`release-row-${publishedReleaseId}`);
+      expect(await row.getByTestId('release-state').textContent()).toBe('Published');
+      expect(await row.getByRole('link', { name: 'public page' }).getAttribute('href')).toMatch(/^\/public\/releases\/[^/]+$/);
+    }
+    await screenshot(analyst.page, 'releases-list');
+    // a phone-sized screen: the caution and the state stay readable
+    await analyst.page.setViewportSize({ width: 390, height: 844 });
+    await analyst.page.goto(`/releases/${created.id}`);
+    await analyst.page.getByTestId('public-caution').waitFor();
+    await screenshot(analyst.page, 'release-phone');
     expect(analyst.errors).toEqual([]);
     await analyst.context.close();
   }, 300_000);
