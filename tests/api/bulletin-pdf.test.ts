@@ -101,6 +101,21 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
       expect(t).toContain(`page ${i} of ${n}`);
       expect(t).toContain(`Version SHA-256 ${long.sha256}`);
     }
+    // No paragraph leaves a single line at the bottom of a page or carries a single line over to the next
+    // (the long fixture's paragraphs are four lines each): count each paragraph's lines per page.
+    const perPage = Array.from({ length: n }, (_, i) =>
+      run('pdftotext', ['-f', String(i + 1), '-l', String(i + 1), '-enc', 'UTF-8', f, '-'])
+        .split('\n')
+        .map((l) => /^Paragraph (\d+) of a long bulletin/.exec(l)?.[1])
+        .filter((x): x is string => !!x),
+    );
+    for (let i = 1; i < n; i++) {
+      const carried = perPage[i][0];
+      if (carried === undefined || perPage[i - 1].at(-1) !== carried) continue;
+      expect(perPage[i - 1].filter((x) => x === carried).length, `paragraph ${carried} at the foot of page ${i}`).toBeGreaterThanOrEqual(2);
+      expect(perPage[i].filter((x) => x === carried).length, `paragraph ${carried} at the top of page ${i + 1}`).toBeGreaterThanOrEqual(2);
+    }
+    expect(perPage.flat().length).toBeGreaterThan(100);
   }, 30_000);
 
   it('sets symbols Merriweather lacks in fallback fonts (no "?" or empty boxes): ≈ ≤ σ ∞', () => {

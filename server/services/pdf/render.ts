@@ -123,9 +123,18 @@ function inlineRuns(ctx: Ctx, nodes: PdfDocNode[] | undefined, base: Partial<Run
 
 function paragraph(ctx: Ctx, runs: Run[], box: Box, size = FONT_SIZE.body, after = SPACING.paragraphAfterPt): void {
   const { doc } = ctx;
-  // Keep at least two lines of a paragraph on a page.
   doc.font(primaryFont('regular')).fontSize(size);
-  ensureSpace(doc, Math.min(paragraphHeight(doc, runs, box.width, { size }), 2 * doc.currentLineHeight(true) + 4));
+  const line = doc.currentLineHeight(true) + SPACING.lineGapPt;
+  const h = paragraphHeight(doc, runs, box.width, { size });
+  const room = bottomLimit(doc) - doc.y;
+  const pageRoom = doc.page.height - doc.page.margins.top - doc.page.margins.bottom;
+  if (h > room && h - room < 1.5 * line && h < pageRoom / 2) {
+    // Only its last line would go over: start the paragraph on the next page (no widow line at the top).
+    doc.addPage();
+  } else {
+    // Keep at least two lines of a paragraph on a page (no orphan line at the bottom).
+    ensureSpace(doc, Math.min(h, 2 * line + 2));
+  }
   writeParagraph(doc, ctx.fonts, runs, box, { size });
   doc.y += after;
 }
