@@ -38,7 +38,7 @@ beforeAll(async () => {
   ({ version, result } = await bulletinVersionFixture());
   pdf = await renderBulletinPdf(version);
   file = save('bulletin.pdf', pdf);
-}, 30_000);
+});
 
 describe('bulletin PDF content (read back with pdftotext)', () => {
   it('shows every linked figure as frozen in the version, and the figures are the engine result’s numbers', () => {
@@ -116,7 +116,7 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
       expect(perPage[i].filter((x) => x === carried).length, `paragraph ${carried} at the top of page ${i + 1}`).toBeGreaterThanOrEqual(2);
     }
     expect(perPage.flat().length).toBeGreaterThan(100);
-  }, 30_000);
+  });
 
   it('sets symbols Merriweather lacks in fallback fonts (no "?" or empty boxes): ≈ ≤ σ ∞', () => {
     const t = text(file);
@@ -256,7 +256,7 @@ describe('byte stability', () => {
       stdio: 'pipe',
     });
     expect(readFileSync(out).equals(pdf)).toBe(true);
-  }, 30_000);
+  });
 
   it('uses the approval time, not the current time, and pins the trailer ID to the version hash', () => {
     const info = run('pdfinfo', ['-isodates', file]);
