@@ -16,7 +16,14 @@ import { ENCOUNTER_TDB_DAYS, fixtureEphemeris, syntheticSolution } from '../unit
 export const RUN_ID = 41;
 const RUN_REF: RunRef = { runId: RUN_ID, solutionId: 7, solutionVersion: 3, inputSha256: '' };
 
+let memo: Promise<Record<string, unknown>> | null = null;
+/** The engine result, computed once per process (a copy each time). */
 export async function engineResult(): Promise<Record<string, unknown>> {
+  memo ??= computeEngineResult();
+  return structuredClone(await memo);
+}
+
+async function computeEngineResult(): Promise<Record<string, unknown>> {
   const { solution } = syntheticSolution({
     xiKm: 30000,
     zetaKm: 12000,
