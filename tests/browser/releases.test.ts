@@ -172,7 +172,10 @@ describe('press releases in the browser', () => {
     await page.keyboard.press('Enter');
     await page.keyboard.type('At its closest the asteroid passes at ');
     await copied.getByRole('button', { name: /Insert .* into the text/ }).first().click();
-    await page.keyboard.type('from the centre of the Earth.');
+    await page.keyboard.type('from the centre of the Earth. ');
+    // the generated sentence about the uncertainty, put in at the cursor
+    const uncertainty = ((await page.getByTestId('plain-uncertainty').textContent()) ?? '').trim();
+    await page.getByTestId('plain-sentences').getByRole('button', { name: 'Insert the sentence "How certain" into the text' }).click();
     await page.waitForFunction(
       () => {
         const el = document.querySelector('[data-testid="release-save-status"]');
@@ -185,6 +188,7 @@ describe('press releases in the browser', () => {
     expect(saved.title).toBe(headline);
     expect(JSON.stringify(saved.document)).toContain('At its closest the asteroid passes at');
     expect(JSON.stringify(saved.document)).toContain('"linkedFigure"');
+    expect(JSON.stringify(saved.document)).toContain(`from the centre of the Earth. ${uncertainty}`);
     await screenshot(page, 'release-draft');
 
     await page.getByRole('button', { name: 'Submit the wording for review' }).click();

@@ -134,6 +134,33 @@ function SaveState({ status }: { status: ReleaseSaveStatus }) {
   );
 }
 
+/** The generated plain-language sentences, each ready to put into the text at the cursor. */
+function PlainSentences({ release, onInsert }: { release: Release; onInsert: (text: string) => void }) {
+  const plain = release.plainLanguage;
+  const sentences = [
+    ...plain.statements.map((s) => ({ key: `s${s.figureIndex}`, label: s.label, text: `${s.label}: ${s.text}.` })),
+    { key: 'uncertainty', label: 'How certain', text: plain.uncertainty },
+  ];
+  return (
+    <section aria-labelledby="plain-sentences-heading" className="rounded-lg border border-rule bg-white p-5" data-testid="plain-sentences">
+      <h2 id="plain-sentences-heading" className="text-lg font-semibold">
+        Plain-language sentences
+      </h2>
+      <p className="mt-1 text-sm text-ink-soft">Generated from the copied figures; use them as they are, or reword without adding certainty.</p>
+      <ul className="mt-3 divide-y divide-rule">
+        {sentences.map((s) => (
+          <li key={s.key} className="py-2 text-sm">
+            <p className="font-serif">{s.text}</p>
+            <Button variant="quiet" className="mt-1 !px-2 !py-1" onClick={() => onInsert(s.text)} aria-label={`Insert the sentence "${s.label}" into the text`}>
+              Insert in text
+            </Button>
+          </li>
+        ))}
+      </ul>
+    </section>
+  );
+}
+
 /** Hides the editor's run-based tools (figure from a run, risk table, plot): public text uses the copied figures. */
 const HIDE_RUN_TOOLS =
   "[&_button[aria-label='Insert_figure']]:hidden [&_button[aria-label='Insert_risk_table']]:hidden [&_button[aria-label='Insert_plot']]:hidden";
@@ -208,11 +235,14 @@ export function ReleaseDraft({ release, handle }: { release: Release; handle: Re
           />
         </div>
       </div>
-      <CopiedFigures
-        figures={release.figures}
-        source={release.source}
-        onInsert={(f) => editorRef.current?.chain().focus().insertLinkedFigure({ runId: f.attrs.runId, quantity: f.attrs.quantity, body: f.attrs.body, epochTdbJd: f.attrs.epochTdbJd }).run()}
-      />
+      <div className="space-y-4">
+        <CopiedFigures
+          figures={release.figures}
+          source={release.source}
+          onInsert={(f) => editorRef.current?.chain().focus().insertLinkedFigure({ runId: f.attrs.runId, quantity: f.attrs.quantity, body: f.attrs.body, epochTdbJd: f.attrs.epochTdbJd }).run()}
+        />
+        <PlainSentences release={release} onInsert={(text) => editorRef.current?.chain().focus().insertContent(text).run()} />
+      </div>
     </div>
   );
 }
