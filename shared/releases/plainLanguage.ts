@@ -86,6 +86,14 @@ export function plainImpactProbability(f: Pick<FigureValue, 'value' | 'low' | 'h
   return `${s}, that is a ${missPercent(p)} chance that it misses`;
 }
 
+/** A distance as a multiple of the Moon's distance, without "about": "3 times the Moon's distance", "the Moon's distance", "40% of the Moon's distance". */
+export function moonMultiple(distanceKm: number): string {
+  const ratio = distanceKm / MOON_DISTANCE_KM;
+  if (ratio >= 1.5) return `${roundForPublic(ratio, ratio < 10 ? 1 : 2)} times the Moon's distance`;
+  if (ratio >= 0.75) return "the Moon's distance";
+  return `${roundForPublic(ratio * 100, 2)}% of the Moon's distance`;
+}
+
 /** "about 3 times the Moon's distance" from a distance from the centre of the Earth in km. */
 export function plainDistanceKm(distanceKm: number): string {
   if (!isNum(distanceKm)) return 'not known';
@@ -100,11 +108,11 @@ export function plainDistanceKm(distanceKm: number): string {
 /** Torino category in words (the scale's published category meanings, paraphrased; common practice, no source). */
 export function plainTorino(t: number): string {
   const n = Math.round(t);
-  if (n <= 0) return 'Torino scale 0: no unusual hazard';
-  if (n === 1) return 'Torino scale 1: a routine discovery that merits no public concern';
-  if (n <= 4) return `Torino scale ${n}: merits attention by astronomers; no cause for public concern`;
-  if (n <= 7) return `Torino scale ${n}: a threatening close encounter that merits critical attention`;
-  return `Torino scale ${n}: a collision is certain`;
+  if (n <= 0) return 'category 0: no unusual hazard';
+  if (n === 1) return 'category 1: a routine discovery that merits no public concern';
+  if (n <= 4) return `category ${n}: merits attention by astronomers; no cause for public concern`;
+  if (n <= 7) return `category ${n}: a threatening close encounter that merits critical attention`;
+  return `category ${n}: a collision is certain`;
 }
 
 /** Palermo scale in words: the ratio to the background hazard (P = log10 of that ratio). */
@@ -187,12 +195,10 @@ export function uncertaintySentence(figures: readonly { value: FigureValue }[]):
   }
   const d = figures.find((f) => f.value.quantity === 'missDistance')?.value;
   if (d && isNum(d.low) && isNum(d.high) && d.high > 0) {
-    const lo = d.low / MOON_DISTANCE_KM;
-    const hi = d.high / MOON_DISTANCE_KM;
     parts.push(
       d.low < EARTH_RADIUS_KM
-        ? `the range of possible closest distances still includes the Earth itself (up to about ${roundForPublic(hi, hi < 10 ? 1 : 2)} times the Moon's distance)`
-        : `the closest distance could be anywhere from about ${roundForPublic(lo, lo < 10 ? 1 : 2)} to ${roundForPublic(hi, hi < 10 ? 1 : 2)} times the Moon's distance`,
+        ? `the range of possible closest distances still includes the Earth itself (up to about ${moonMultiple(d.high)})`
+        : `the closest distance could be anywhere from about ${moonMultiple(d.low)} to ${moonMultiple(d.high)}`,
     );
   }
   const head = parts.length ? parts.join(', and ') : 'these figures rest on the observations made so far';

@@ -65,7 +65,7 @@ describe('numbers for the public', () => {
     // P = -2 -> R = 10^-2: a hundred times below the background.
     expect(plainPalermo(-2)).toMatch(/^below the background hazard: about 100 times less likely/);
     expect(plainPalermo(0.3)).toMatch(/^at or above the background hazard: about 2\.0 times/);
-    expect(plainTorino(0)).toBe('Torino scale 0: no unusual hazard');
+    expect(plainTorino(0)).toBe('category 0: no unusual hazard');
     expect(plainTorino(9)).toMatch(/collision is certain/);
   });
 
@@ -86,11 +86,15 @@ describe('numbers for the public', () => {
     ]);
     // One sentence: says where the probability comes from, its range, the distance range, and that it will change.
     expect(p.uncertainty).toBe(
-      "The chance of impact comes from simulating many possible orbits and, with the observations so far, may lie anywhere between 1 in 5,000 and 1 in 20,000, and the closest distance could be anywhere from about 1 to 6 times the Moon's distance; all of them will change as new observations refine the orbit.",
+      "The chance of impact comes from simulating many possible orbits and, with the observations so far, may lie anywhere between 1 in 5,000 and 1 in 20,000, and the closest distance could be anywhere from about the Moon's distance to 6 times the Moon's distance; all of them will change as new observations refine the orbit.",
     );
     expect(p.uncertainty.match(/\./g)).toHaveLength(1);
     // A linear estimate is said to have no firm error range.
     expect(uncertaintySentence([{ value: fig('impactProbability', 2e-5, { method: 'linear' }) }])).toMatch(/estimate without a firm error range/);
+    // A range that includes the Earth says so (0.6 LD -> "60% of the Moon's distance").
+    expect(uncertaintySentence([{ value: fig('missDistance', 26_000, { low: 0, high: 0.6 * 384_399 }) }])).toBe(
+      "The range of possible closest distances still includes the Earth itself (up to about 60% of the Moon's distance); all of them will change as new observations refine the orbit.",
+    );
     // A quantity without a public statement gives none.
     expect(plainStatement(0, fig('impactProbability', null))).toEqual({ figureIndex: 0, quantity: 'impactProbability', label: 'Chance of impact', text: 'not known' });
   });

@@ -61,16 +61,17 @@ export function seedDemoReleases(services: Services, emailDomain: string, nowMs 
   seedDemoPressList(db);
 
   const r = services.releases;
-  const approved = (title: string, summary: string) => {
+  const approved = (title: string, lead: string) => {
     const created = r.create({ bulletinId: source.bulletinId, version: source.version, title }, comms);
-    r.update(created.id, { revision: created.revision, summary }, comms);
+    // The lead sentence, then the generated summary with the odds as the bulletin states them.
+    r.update(created.id, { revision: created.revision, summary: `${lead} ${created.summary}`.trim() }, comms);
     r.transition(created.id, { action: 'submit' }, comms, nowMs);
     r.transition(created.id, { action: 'approve', comment: 'Wording matches the approved bulletin.' }, reviewer, nowMs);
     return created.id;
   };
 
   // Published: scheduled for now, then published through the scheduler's own path (once; press e-mail sent).
-  const published = approved('Asteroid HSO-26-N4 will pass the Earth in 2034', 'Our office has assessed the orbit of a newly found asteroid. It will pass the Earth in September 2034; an impact is very unlikely.');
+  const published = approved('Asteroid HSO-26-N4 will pass the Earth in 2034', 'Our office has assessed the orbit of a newly found asteroid that passes the Earth in September 2034.');
   r.transition(published, { action: 'schedule', publishAt: new Date(nowMs).toISOString(), timeZone: 'UTC' }, comms, nowMs);
   r.publishDue(nowMs);
 

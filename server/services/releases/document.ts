@@ -51,7 +51,7 @@ export function initialReleaseDocument(designation: string, figures: readonly Fi
     items.push({ type: 'listItem', content: [p(text(`${s.label}: ${s.text} (`), { type: 'linkedFigure', attrs: { ...f.attrs } }, text(').'))] });
   }
   if (items.length) content.push({ type: 'bulletList', content: items });
-  content.push(p(text(plain.uncertainty)));
+  // The uncertainty sentence and the caution are shown with every release (not part of the editable text).
   return { type: 'doc', content };
 }
 
