@@ -88,6 +88,10 @@ export function useTransition(id: number) {
       qc.setQueryData(bulletinKeys.detail(id), b);
       return Promise.all([qc.invalidateQueries({ queryKey: bulletinKeys.lists() }), qc.invalidateQueries({ queryKey: bulletinKeys.versions(id) })]);
     },
+    // 409: someone else moved the bulletin on (e.g. a second reviewer approved first): show its state now.
+    onError: (e) => {
+      if (e instanceof ApiError && e.status === 409) return qc.invalidateQueries({ queryKey: bulletinKeys.detail(id) });
+    },
   });
 }
 
