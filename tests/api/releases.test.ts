@@ -154,6 +154,25 @@ describe('amending', () => {
   });
 });
 
+describe('withdrawn source', () => {
+  it('never publishes figures of a bulletin version that was withdrawn after scheduling', async () => {
+    const fresh = await releaseFixture(srv, as);
+    const r = await approvedRelease(as, fresh.bulletinId, 'Withdrawn source check');
+    const dueMs = Date.now() + 40 * 86_400_000;
+    expect((await schedule(as.communications, r.id, new Date(dueMs).toISOString())).status).toBe(200);
+    const w = await as.reviewer.request('POST', `/api/bulletins/${fresh.bulletinId}/transitions`, { body: { action: 'withdraw', comment: 'The orbit solution was found to be wrong.' } });
+    expect(w.status, JSON.stringify(w.body)).toBe(200);
+    const out = createReleaseScheduler(srv.services.releases, { now: () => dueMs + 1, log: () => undefined }).tick().filter((p) => p.id === r.id);
+    expect(out).toEqual([]);
+    const x = releaseSchema.parse((await as.communications.get(`/api/releases/${r.id}`)).body);
+    expect(x.state).toBe('cancelled');
+    expect(x.events.at(-1)?.comment).toMatch(/withdrawn/);
+    expect(publishEvents(r.id)).toHaveLength(0);
+    // And no new release starts from it.
+    expect((await as.communications.request('POST', '/api/releases', { body: { bulletinId: fresh.bulletinId, version: 1 } })).status).toBe(422);
+  });
+});
+
 describe('scheduling and the public site', () => {
   it('keeps a scheduled release off every public route until its time, then publishes it exactly once', async () => {
     const title = `Embargo check ${Date.now()}`;

@@ -211,6 +211,16 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
     return t;
   }
 
+  /** Whether the bulletin version the figures were copied from has been withdrawn. */
+  function sourceWithdrawn(r: ReleaseRow, reader: Reader): boolean {
+    const v = reader
+      .select({ status: bulletinVersions.status })
+      .from(bulletinVersions)
+      .where(and(eq(bulletinVersions.bulletinId, r.bulletinId), eq(bulletinVersions.version, r.bulletinVersion)))
+      .get();
+    return v?.status === 'withdrawn';
+  }
+
   function checkDocument(doc: BulletinDocument, figures: readonly FigureSnapshot[]): void {
     const problems = releaseDocumentProblems(doc, figures);
     if (problems.length) throw unprocessable(problems[0], { issues: problems.map((message) => ({ in: 'body', path: 'document', message })) });
@@ -244,6 +254,17 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
     const result = db.transaction((tx) => {
       const r = tx.select().from(releases).where(eq(releases.id, id)).get();
       if (!r || r.state !== 'scheduled' || !r.publishAt || r.publishAt.getTime() > nowMs || r.latestVersion === null) return null;
+      if (sourceWithdrawn(r, tx)) {
+        // The figures were withdrawn by the office after scheduling: the release must not go out.
+        const n = tx
+          .update(releases)
+          .set({ state: 'cancelled', publishAt: null, updatedAt: new Date(nowMs) })
+          .where(and(eq(releases.id, r.id), eq(releases.state, 'scheduled'), eq(releases.publishAt, r.publishAt)))
+          .run().changes;
+        if (n === 1)
+          addEvent(tx, { releaseId: r.id, action: 'cancel', fromState: 'scheduled', toState: 'cancelled', version: r.latestVersion, actorId: null, publishAt: r.publishAt, comment: `Not published: version ${r.bulletinVersion} of the bulletin was withdrawn` });
+        return null;
+      }
       const locked = lockedVersion(r.id, r.latestVersion, tx);
       const slug = releaseSlug(r.number, locked.title);
       const lateByMs = Math.max(0, Math.round(nowMs - r.publishAt.getTime()));
@@ -378,6 +399,8 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
           if (g === 'author' || g === 'notAuthor') throw forbidden(failure);
           throw unprocessable(failure, { guard: g, issues: [{ in: 'body', path: 'publishAt', message: failure }] });
         }
+        if ((t.action === 'approve' || t.action === 'schedule' || t.action === 'reschedule') && sourceWithdrawn(r, tx))
+          throw unprocessable(`Version ${r.bulletinVersion} of the bulletin was withdrawn: its figures cannot be published`, { guard: 'source' });
         const now = new Date(nowMs);
         const set: Partial<typeof releases.$inferInsert> = { state: t.to, updatedAt: now, updatedById: actor.id };
         let version: number | null = ['draft', 'in_review', 'changes_requested'].includes(r.state) ? r.draftVersion : r.latestVersion;
