@@ -41,6 +41,8 @@ export type EncounterRow = {
   ipMonteCarlo: number | null;
   ipMonteCarloHits: number | null;
   ipMonteCarloSamples: number | null;
+  ipMonteCarloCi95: [number, number] | null;
+  ipMonteCarloUpperBound95: number | null;
   ipLov: number | null;
   palermo: number | null;
   torino: number | null;
@@ -82,6 +84,8 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       ipMonteCarlo: mc?.estimate ?? null,
       ipMonteCarloHits: mc?.hits ?? null,
       ipMonteCarloSamples: mc?.samples ?? null,
+      ipMonteCarloCi95: mc?.ci95 ? [mc.ci95[0], mc.ci95[1]] : null,
+      ipMonteCarloUpperBound95: mc?.upperBound95 ?? null,
       ipLov: a.impactProbability.lov,
       palermo: a.palermo,
       torino: a.torino,
@@ -119,6 +123,8 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       ipMonteCarlo: mc?.estimate ?? null,
       ipMonteCarloHits: mc?.hits ?? null,
       ipMonteCarloSamples: mc?.samples ?? null,
+      ipMonteCarloCi95: mc?.ci95 ? [mc.ci95[0], mc.ci95[1]] : null,
+      ipMonteCarloUpperBound95: mc?.upperBound95 ?? null,
       ipLov: w.impactProbability.lov,
       palermo: w.palermo,
       torino: w.torino,
@@ -158,6 +164,9 @@ const CSV_COLUMNS: [string, (r: EncounterRow, s: ResultSource, res: AssessmentRe
   ['ip_monte_carlo', (r) => r.ipMonteCarlo],
   ['ip_monte_carlo_hits', (r) => r.ipMonteCarloHits],
   ['ip_monte_carlo_samples', (r) => r.ipMonteCarloSamples],
+  ['ip_monte_carlo_low95', (r) => r.ipMonteCarloCi95?.[0] ?? null],
+  ['ip_monte_carlo_high95', (r) => r.ipMonteCarloCi95?.[1] ?? null],
+  ['ip_monte_carlo_upper_bound95', (r) => r.ipMonteCarloUpperBound95],
   ['ip_lov', (r) => r.ipLov],
   ['palermo', (r) => r.palermo],
   ['torino', (r) => r.torino],

@@ -163,6 +163,7 @@ describe('encounter table exports', async () => {
     expect([a.nominal_impact, a.window_edge]).toEqual(['false', 'false']);
     expect([a.diameter_m_nominal, a.diameter_m_low, a.diameter_m_high]).toEqual(['120', '100', '140']);
     expect(a.ip_monte_carlo_samples).toBe('1000');
+    expect([a.ip_monte_carlo, a.ip_monte_carlo_upper_bound95]).toEqual(['', '0.002991']);
     expect(a.method_flags.startsWith('linear IP 7.33e-2 is above')).toBe(true);
     const w = row(2);
     expect([w.row_kind, w.impact_probability, w.impact_probability_low95, w.torino]).toEqual(['window', '0.012', '0.0069', '4']);

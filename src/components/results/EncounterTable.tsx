@@ -1,6 +1,7 @@
 // The encounter table of a run: one row per nominal close approach (and per Monte Carlo / LOV window without
 // one), with dates in UTC and TDB, distances in the chosen unit, the impact probability with its interval or bound
 // and the method that gave it, Palermo, Torino and the energy range. Every row says its run and solution version.
+import { Fragment } from 'react';
 import type { AssessmentResult } from '../../../shared/schemas/assessment';
 import {
   formatDistance,
@@ -9,6 +10,7 @@ import {
   formatExp,
   formatJd,
   formatPalermo,
+  formatUpperBound,
   formatSigmaSeconds,
   formatSpeedKmS,
   formatTdbJd,
@@ -33,13 +35,24 @@ function energyLines(text: string) {
   );
 }
 
-/** Every method's figure side by side ("linear 7.3e-2 · LOV 7.1e-2 · MC 12 hits in 1,000"), or null. */
-function allMethods(r: EncounterRow): string | null {
-  const parts: string[] = [];
-  if (r.ipLinear !== null) parts.push(`linear ${formatExp(r.ipLinear)}`);
-  if (r.ipLov !== null) parts.push(`LOV ${formatExp(r.ipLov)}`);
-  if (r.ipMonteCarloSamples !== null) parts.push(`MC ${r.ipMonteCarloHits ?? 0} hits in ${r.ipMonteCarloSamples.toLocaleString('en-GB')}`);
-  return parts.length > 1 || (parts.length === 1 && r.ipMethod === null) ? parts.join(' · ') : null;
+/**
+ * Every method's figure side by side, each as unbreakable pieces (so "8.2e-2" never wraps at its hyphen), or null
+ * when only the rated method ran.
+ */
+function allMethods(r: EncounterRow): string[][] | null {
+  const parts: string[][] = [];
+  if (r.ipLinear !== null) parts.push([`linear ${formatExp(r.ipLinear)}`]);
+  if (r.ipLov !== null) parts.push([`LOV ${formatExp(r.ipLov)}`]);
+  if (r.ipMonteCarloSamples !== null) {
+    const n = `(${r.ipMonteCarloHits ?? 0} hit${r.ipMonteCarloHits === 1 ? '' : 's'} in ${r.ipMonteCarloSamples.toLocaleString('en-GB')})`;
+    if (r.ipMonteCarlo !== null) {
+      const ci = r.ipMonteCarloCi95;
+      parts.push([`MC ${formatExp(r.ipMonteCarlo)}`, ...(ci ? [`(95%: ${formatExp(ci[0])}–${formatExp(ci[1])})`] : []), n]);
+    } else {
+      parts.push([`MC ${formatUpperBound(r.ipMonteCarloUpperBound95)}`, n]);
+    }
+  }
+  return parts.length > 1 || (parts.length === 1 && r.ipMethod === null) ? parts : null;
 }
 
 function bodyName(b: string) {
@@ -146,7 +159,24 @@ export function EncounterTable({
                     {r.ipMethod ?? 'not computed'}
                     {r.ipMethodDetail ? ` (${r.ipMethodDetail})` : ''}
                   </span>
-                  {allMethods(r) && <><br /><span className="text-xs text-ink-soft">all methods: {allMethods(r)}</span></>}
+                  {allMethods(r) && (
+                    <>
+                      <br />
+                      <span className="text-xs text-ink-soft">
+                        all methods:
+                        {allMethods(r)!.map((m, i) => (
+                          <span key={i} className="block">
+                            {m.map((piece, k) => (
+                              <Fragment key={k}>
+                                {k > 0 ? ' ' : ''}
+                                <span className="whitespace-nowrap">{piece}</span>
+                              </Fragment>
+                            ))}
+                          </span>
+                        ))}
+                      </span>
+                    </>
+                  )}
                   {r.methodFlags.length > 0 && (
                     <ul className="mt-1 list-disc pl-4 text-xs text-signal-700">
                       {r.methodFlags.map((f, i) => <li key={i}>{f}</li>)}
