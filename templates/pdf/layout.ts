@@ -13,9 +13,9 @@ export const PAGE = {
   marginTopPt: 56,
   marginSidePt: 56,
   /** Room kept free at the bottom for the footer (the footer sits inside it). */
-  marginBottomPt: 64,
-  /** Baseline area of the footer, measured up from the page bottom. */
-  footerFromBottomPt: 40,
+  marginBottomPt: 72,
+  /** Top of the footer text (three lines: marking and page, version hash, standing caution), up from the page bottom. */
+  footerFromBottomPt: 48,
 };
 
 export const FONT_SIZE = {
@@ -34,6 +34,7 @@ export const FONT_SIZE = {
   caution: 9,
   signOff: 9.5,
   footer: 7,
+  footerCaution: 6.5,
   plotCaption: 8.5,
 };
 

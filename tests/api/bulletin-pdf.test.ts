@@ -100,6 +100,7 @@ describe('bulletin PDF content (read back with pdftotext)', () => {
       const t = text(f, i);
       expect(t).toContain(`page ${i} of ${n}`);
       expect(t).toContain(`Version SHA-256 ${long.sha256}`);
+      expect(t).toContain(STANDING_CAUTION);
     }
     // No paragraph leaves a single line at the bottom of a page or carries a single line over to the next
     // (the long fixture's paragraphs are four lines each): count each paragraph's lines per page.

@@ -557,6 +557,9 @@ function footers(ctx: Ctx): void {
     });
     doc.y = y + FONT_SIZE.footer * 1.5;
     writeParagraph(doc, fonts, [{ text: `Version SHA-256 ${v.sha256}` }], box, { size: FONT_SIZE.footer, color: COLOR.muted });
+    // The standing caution on every page, not only in the box on the first.
+    doc.y = y + FONT_SIZE.footer * 3;
+    writeParagraph(doc, fonts, [{ text: STANDING_CAUTION, italic: true }], box, { size: FONT_SIZE.footerCaution, color: COLOR.muted });
     doc.page.margins.bottom = bottom;
   }
 }
