@@ -225,7 +225,8 @@ describe('press releases in the browser', () => {
     await page.getByRole('button', { name: 'Schedule publication…' }).click();
     const dialog = page.getByRole('dialog', { name: 'Schedule publication' });
     expect(await dialog.getByLabel('Time zone').inputValue()).toBe('Europe/Berlin');
-    const publishAtMs = Math.ceil((Date.now() + 20_000) / 1000) * 1000;
+    // far enough ahead for the steps up to the absence check below on a loaded machine
+    const publishAtMs = Math.ceil((Date.now() + 30_000) / 1000) * 1000;
     const wall = berlinWall(publishAtMs);
     await dialog.getByLabel(/Date and time/).fill(wall);
     const utcText = `${new Date(publishAtMs).toISOString().slice(0, 19).replace('T', ' ')} UTC`;
@@ -239,7 +240,6 @@ describe('press releases in the browser', () => {
     expect(scheduled.publication.timeZone).toBe('Europe/Berlin');
     expect(await page.getByTestId('publish-at-utc').textContent()).toBe(utcText);
     expect((await page.getByTestId('publish-at-zone').first().textContent()) ?? '').toContain(`${wall.replace('T', ' ')} Europe/Berlin`);
-    await screenshot(page, 'release-scheduled');
 
     // ---- before its time: absent from the public site, the public JSON and the feed (checked from a signed-out context)
     const visitor = await newContext(browser, server.url);
@@ -255,6 +255,7 @@ describe('press releases in the browser', () => {
     // the absence above only means something if it was seen before the publication time
     expect(Date.now(), 'the public routes were checked after the publication time (machine too slow)').toBeLessThan(publishAtMs);
     expect(checkedAt).toBeLessThan(publishAtMs);
+    await screenshot(page, 'release-scheduled');
 
     // ---- after its time: the public list links to the release page, which shows the wording and the caution
     await eventually(
@@ -290,7 +291,7 @@ describe('press releases in the browser', () => {
     expect(berlin.errors).toEqual([]);
     await berlin.context.close();
   }, 420_000);
-  it('communications reschedule in their own zone, take a release off the schedule and cancel it; it never appears publicly', async () => {
+  it('communications revise after a change request, reschedule in their own zone, take a release off the schedule and cancel it; it never appears publicly', async () => {
     if (!sharedBulletin) {
       const analyst = await signedIn('analyst');
       sharedBulletin = await approvedBulletin(analyst.page);
@@ -300,12 +301,23 @@ describe('press releases in the browser', () => {
     const comms = actor('communications');
     const created = server.services.releases.create({ bulletinId: sharedBulletin.id, version: 1, title }, comms);
     server.services.releases.transition(created.id, { action: 'submit' }, comms);
-    server.services.releases.transition(created.id, { action: 'approve' }, actor('reviewer'));
+    const askedFor = 'Say "about" before the distance, as in the plain-language sentence.';
+    server.services.releases.transition(created.id, { action: 'request_changes', comment: askedFor }, actor('reviewer'));
 
     // communications staff in New York: US daylight time (UTC-4) in July, standard time (UTC-5) in December
     const ny = await signedIn('communications', 'America/New_York');
     const page = ny.page;
     await page.goto(`/releases/${created.id}`);
+    // the reviewer's request is shown with the one action that takes the wording back to editing
+    await page.getByTestId('release-state').filter({ hasText: 'Changes requested' }).first().waitFor();
+    expect(await page.getByRole('status').filter({ hasText: askedFor }).count()).toBe(1);
+    await page.getByRole('button', { name: 'Revise', exact: true }).click();
+    await page.getByRole('dialog', { name: 'Revise' }).getByRole('button', { name: 'Revise' }).click();
+    await page.getByTestId('release-state').filter({ hasText: 'Draft' }).first().waitFor();
+    await page.getByTestId('bulletin-editor').waitFor();
+    server.services.releases.transition(created.id, { action: 'submit' }, comms);
+    server.services.releases.transition(created.id, { action: 'approve' }, actor('reviewer'));
+    await page.reload();
     await page.getByTestId('release-state').filter({ hasText: 'Approved' }).first().waitFor();
     expect((await page.getByTestId('public-caution').textContent()) ?? '').toContain(PUBLIC_CAUTION);
 
