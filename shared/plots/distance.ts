@@ -7,7 +7,8 @@
 //    periapsis time = epochTdbJd; r(t) from Kepler's hyperbolic equation M = e sinh H - H (Newton's method);
 //  - spread (3-sigma band): the envelope of the hyperbolae with q anywhere in distanceRangeKm.threeSigma (the linear
 //    3-sigma range of the closest distance) and periapsis time shifted by up to +-3 encounterTime.sigmaSeconds:
-//    lower edge r_{q_lo}(max(0, |dt| - 3 sigma_t)), upper edge r_{q_hi}(|dt| + 3 sigma_t) (r grows with q and |dt|).
+//    lower edge min_q r_q(max(0, |dt| - 3 sigma_t)), upper edge max_q r_q(|dt| + 3 sigma_t) (r grows with |dt|; over
+//    q, 25 values evenly spanning the range and the nominal one are taken, since r does not always grow with q).
 // The two-body curve ignores the Sun's tide: good near the encounter (inside about a Hill radius, ~1.5e6 km for
 // Earth), approximate further out. When v-infinity is missing, a straight line at the relative speed is used.
 import type { Approach, AssessmentResult } from '../schemas/assessment';
@@ -96,6 +97,8 @@ export function distanceSeries(result: AssessmentResult, approachIndex: number, 
     hyper ? hyperbolaDistanceKm(Math.max(q, 1e-3), a.vInfinityKmS!, mu!, dtS) : Math.hypot(q, a.relativeSpeedKmS * dtS);
   const range = a.distanceRangeKm?.threeSigma ?? null;
   const sigT = a.encounterTime ? 3 * a.encounterTime.sigmaSeconds : 0;
+  const Q_SAMPLES = 24;
+  const qs = range ? [a.distanceKm, ...Array.from({ length: Q_SAMPLES + 1 }, (_, k) => range[0] + ((range[1] - range[0]) * k) / Q_SAMPLES)] : [];
   const tHours: number[] = [], nominalKm: number[] = [], lowKm: number[] = [], highKm: number[] = [];
   for (let i = 0; i < n; i++) {
     const h = -half + (2 * half * i) / (n - 1);
@@ -103,8 +106,15 @@ export function distanceSeries(result: AssessmentResult, approachIndex: number, 
     tHours.push(h);
     nominalKm.push(r(a.distanceKm, dt));
     if (range) {
-      lowKm.push(r(range[0], Math.max(0, Math.abs(dt) - sigT)));
-      highKm.push(r(range[1], Math.abs(dt) + sigT));
+      // r grows with |dt| for each q, but not always with q (far from periapsis a near-radial path lags behind a
+      // wider one), so the envelope is taken over a set of q values spanning the range, the nominal included.
+      let lo = Infinity, hi = -Infinity;
+      for (const q of qs) {
+        lo = Math.min(lo, r(q, Math.max(0, Math.abs(dt) - sigT)));
+        hi = Math.max(hi, r(q, Math.abs(dt) + sigT));
+      }
+      lowKm.push(lo);
+      highKm.push(hi);
     }
   }
   const method = hyper
