@@ -4,21 +4,20 @@
  * Byte stability: pdfkit's only sources of variation are the info dictionary's CreationDate (default: now) and the
  * trailer /ID (an MD5 of the info dictionary, pdfkit 0.20 PDFSecurity.generateFileID). Both are pinned here: the
  * dates are the version's approval time and the ID is the first 16 bytes of the version's SHA-256. Font subset tags
- * are derived from pdfkit's font ids (F1, F2 ...), which follow registration order; deflate output is deterministic.
+ * are derived from pdfkit's font ids (F1, F2 ...), which follow the order fonts are first used in the document, the
+ * same for the same input; deflate output is deterministic. Nothing reads the clock or the locale.
  */
 import PDFDocument from 'pdfkit';
 import {
   FIGURE_QUANTITY_LABELS,
   linkedFigureAttrsSchema,
+  type DocNode as PdfDocNode,
   type FigureQuantity,
+  type FigureValue,
 } from '../../../shared/bulletins/document';
 import { COLOR, FONT_SIZE, PAGE, PLOT, PRODUCER, SPACING, STANDING_CAUTION } from '../../../templates/pdf/layout';
 import { FontSet, primaryFont } from './fonts';
-import type { DocNode } from '../../../shared/bulletins/document';
-import type { FigureValue } from '../../../shared/bulletins/document';
 import type { BulletinVersionForPdf } from './index';
-
-type PdfDocNode = DocNode;
 import { drawPlot } from './plots';
 import { riskTableSpec } from './riskTable';
 import { drawTable } from './table';
