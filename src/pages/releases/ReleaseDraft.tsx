@@ -31,6 +31,9 @@ function useReleaseAutosave(release: Release) {
   const stopped = useRef(false);
   const [status, setStatus] = useState<ReleaseSaveStatus>({ kind: 'saved', revision: release.revision });
   const mutate = save.mutateAsync;
+  // an emptied headline is saved as the last stored one (a ref: a new title from the server must not re-create run())
+  const storedTitle = useRef(release.title);
+  storedTitle.current = release.title;
 
   const run = useCallback(async (): Promise<boolean> => {
     if (stopped.current) return false;
@@ -40,7 +43,7 @@ function useReleaseAutosave(release: Release) {
     setStatus({ kind: 'saving' });
     const p = (async () => {
       try {
-        const r = await mutate({ revision: base.current, title: d.title.trim() || release.title, summary: d.summary, document: d.document });
+        const r = await mutate({ revision: base.current, title: d.title.trim() || storedTitle.current, summary: d.summary, document: d.document });
         base.current = r.revision;
         savedEdits.current = sentAt;
         setStatus(edits.current === sentAt ? { kind: 'saved', revision: r.revision } : { kind: 'dirty' });
@@ -58,7 +61,7 @@ function useReleaseAutosave(release: Release) {
     const ok = await p;
     inFlight.current = null;
     return ok;
-  }, [mutate, release.title]);
+  }, [mutate]);
 
   const change = useCallback(
     (patch: Partial<Draft>) => {
