@@ -311,6 +311,8 @@ export async function assess(solution: OrbitSolution, opts: AssessOptions, hooks
         : null,
       linearValidity: lin ? lin.validity : null,
       monteCarloPhrase: mcOut ? mcOut.phrase : null,
+      // The window's b-plane points (a capped subset, hits kept) for plots; absent without Monte Carlo.
+      ...(mw ? { monteCarloBPlanePoints: mw.bPlanePoints } : {}),
       lovDetail: lov
         ? lw
           ? { virtualImpactors: lw.virtualImpactors, vasWithEncounter: lw.vasWithEncounter, found: lw.virtualImpactors.length > 0 }
@@ -346,6 +348,7 @@ export async function assess(solution: OrbitSolution, opts: AssessOptions, hooks
       torino: rat.torino,
       ratingProbabilitySource: chosen.source,
       methodFlags: disagreements(ips),
+      bPlanePoints: w.bPlanePoints,
     });
   }
   for (const w of lov?.windows ?? []) {
