@@ -3,6 +3,6 @@ export { assess, AssessError } from './assess';
 export type { AssessResult } from './assess';
 export { linearAssessment } from './linear';
 export type { LinearApproachResult, SolutionPoint, WorkingCovariance } from './linear';
-export { lovAssessment, semilinearIp, lovDirection } from './lov';
+export { lovAssessment, semilinearIp, lovSegmentIp, lovDirection } from './lov';
 export type { LovResult, LovWindow, LovVirtualImpactor } from './lov';
 export type * from './types';

@@ -20,12 +20,14 @@
  *    until the bracket spans < 5% of the capture radius on the b-plane (at most 30 evaluations).
  * 4. At the refined point sigma*, the VA is propagated with its state transition matrix: B_J = d(xi, zeta)/dx0, the
  *    trace derivative b' = B_J dx/dsigma, and the b-plane covariance of the solutions conditioned on sigma,
- *    Gamma_c = Gamma - Gamma c c^T Gamma / (c^T Gamma c), c = D^-1 v_w. Semilinear IP of the virtual impactor:
- *      IP = integral over a in [-b, b] of phi(sigma(a)) [Phi((h(a) - m)/s) - Phi((-h(a) - m)/s)] da / |b'|,
- *    a = along-trace coordinate, h(a) = sqrt(b^2 - a^2), m = cross-trace offset of the trace from the centre,
- *    s^2 = n^T B_J Gamma_c B_J^T n (cross-trace width), b = capture radius for the VA's v_inf; Gauss-Legendre in
- *    a = b sin(theta) on 64 panels of 10 points. This is "1-D probability mass along the LOV segment x Gaussian
- *    fraction across the trace" (METHODS §6.4 item 4).
+ *    Gamma_c = Gamma - Gamma c c^T Gamma / (c^T Gamma c), c = D^-1 v_w, mapped to the b-plane: Gamma_Bc = B_J Gamma_c B_J^T.
+ *    IP of the virtual impactor (lovSegmentIp): integral over sigma of phi(sigma) times the probability that
+ *    N(b(sigma), Gamma_Bc) falls in the capture disk (risk/linear-ip), b(sigma) = b* + (sigma - sigma*) b'. This is
+ *    the "1-D probability mass along the LOV segment x Gaussian fraction of the rest" of METHODS §6.4 item 4, with the
+ *    conditional spread kept in both b-plane directions: the LOV direction need not carry all of the spread along
+ *    the trace, and dropping the along-trace part underestimated a 3-sigma-tail IP by a factor of 7 on the demo
+ *    asteroid. Exact for a Gaussian solution in the linear regime; the straight trace is extrapolated past the
+ *    sampled sigma range when the crossing lies beyond it.
  * Limits (say so in the output): a straight LOV (no refit, no curvature in initial-condition space); a VI narrower
  * than the sample spacing whose trace minimum is not a local minimum of the sampled trace can be missed; after
  * deep encounters the trace folds and needs denser sampling; when the region is wide in two directions the LOV
@@ -36,7 +38,7 @@ import type { CloseApproach } from '../dynamics';
 import type { PlanetEphemeris } from '../dynamics/types';
 import type { EphemerisBody } from '../ephemeris';
 import { jacobiEigenSymmetric } from '../linalg';
-import { normalIntervalProbability, normalPdf, gaussLegendre } from '../risk';
+import { normalIntervalProbability, normalPdf, gaussLegendre, linearImpactProbability } from '../risk';
 import { approachesOf, bPlaneJacobianAt, captureRadiusFor, displace, type SolutionPoint, type WorkingCovariance } from './linear';
 
 export type LovOptions = {
@@ -316,10 +318,18 @@ export function lovAssessment(ctx: Ctx, opts: LovOptions = {}): LovResult {
     }
     w2 -= (rg * rg) / cgc;
     const sPerp = Math.sqrt(Math.max(0, w2));
+    // Full conditional b-plane covariance Gamma_Bc = B_J Gamma_c B_J^T (2x2): its along-trace part matters too,
+    // because the LOV direction (weak direction in the scaled metric) need not carry all of the b-plane spread.
+    const covBc = conditionalBPlaneCovariance(bj, n, G, gc, cgc);
     const bx = bestA.bPlane!.xiKm, bz = bestA.bPlane!.zetaKm;
     const m = bx * nX + bz * nZ;
-    const a0 = bx * tX + bz * tZ; // along-trace coordinate at sigma*
-    const ip = semilinearIp(capture, m, sPerp, (a) => bestS + (a - a0) / stretch, stretch);
+    const ip = lovSegmentIp({
+      traceKm: [bx, bz],
+      traceDerivKmPerSigma: [bpX, bpZ],
+      sigmaAtTrace: bestS,
+      conditionalCovKm2: covBc,
+      captureRadiusKm: capture,
+    });
     return {
       body,
       tdbDays: bestA.tdbDays,
@@ -386,3 +396,66 @@ export function semilinearIp(b: number, m: number, sPerp: number, sigmaOf: (a: n
   return Math.min(1, Math.max(0, total));
 }
 
+
+/** B_J Gamma_c B_J^T with Gamma_c = Gamma - (Gamma c)(Gamma c)^T / (c^T Gamma c); bj holds the two rows of B_J. */
+function conditionalBPlaneCovariance(bj: Float64Array, n: number, G: Float64Array, gc: Float64Array, cgc: number): number[][] {
+  const out = [[0, 0], [0, 0]];
+  for (let a = 0; a < 2; a++) {
+    for (let b = 0; b < 2; b++) {
+      let q = 0, ra = 0, rb = 0;
+      for (let i = 0; i < n; i++) {
+        ra += bj[a * n + i] * gc[i];
+        rb += bj[b * n + i] * gc[i];
+        for (let j = 0; j < n; j++) q += bj[a * n + i] * G[i * n + j] * bj[b * n + j];
+      }
+      out[a][b] = q - (ra * rb) / cgc;
+    }
+  }
+  const sym = 0.5 * (out[0][1] + out[1][0]);
+  out[0][1] = out[1][0] = sym;
+  return out;
+}
+
+/**
+ * IP of a virtual-impactor segment of a locally straight LOV trace, exact for a Gaussian solution in the linear
+ * regime: IP = integral over sigma of phi(sigma) P(N(b(sigma), Gamma_Bc) in the capture disk) d sigma, with
+ * b(sigma) = b* + (sigma - sigma*) b' the trace and Gamma_Bc the b-plane covariance of the solutions conditioned on
+ * sigma (both across and along the trace). The inner disk probability is risk/linear-ip (principal axes, erfc
+ * across the narrow axis). Gauss-Legendre over sigma on 48 panels of 10 points, across the span where the
+ * conditional cloud can touch the disk (capture radius + 10 conditional sigmas either side).
+ */
+export function lovSegmentIp(p: {
+  traceKm: [number, number];
+  traceDerivKmPerSigma: [number, number];
+  sigmaAtTrace: number;
+  conditionalCovKm2: number[][];
+  captureRadiusKm: number;
+}): number {
+  const [bx, bz] = p.traceKm;
+  const [dx, dz] = p.traceDerivKmPerSigma;
+  const s2 = dx * dx + dz * dz;
+  if (!(s2 > 0)) return 0;
+  const c = p.conditionalCovKm2;
+  const lMax = 0.5 * (c[0][0] + c[1][1]) + Math.sqrt(0.25 * (c[0][0] - c[1][1]) ** 2 + c[0][1] ** 2);
+  // A floor keeps the 2x2 covariance positive definite when the conditional spread is (nearly) rank one.
+  const floor = Math.max(1e-12 * lMax, 1e-12);
+  const cov = [[c[0][0] + floor, c[0][1]], [c[1][0], c[1][1] + floor]];
+  const sClosest = p.sigmaAtTrace - (bx * dx + bz * dz) / s2;
+  const half = (p.captureRadiusKm + 10 * Math.sqrt(Math.max(lMax, 0))) / Math.sqrt(s2);
+  const panels = 48;
+  const a = sClosest - half;
+  const width = (2 * half) / panels;
+  let total = 0;
+  for (let k = 0; k < panels; k++) {
+    const mid = a + (k + 0.5) * width;
+    let sum = 0;
+    for (let i = 0; i < GL10.x.length; i++) {
+      const sigma = mid + 0.5 * width * GL10.x[i];
+      const ds = sigma - p.sigmaAtTrace;
+      const pDisk = linearImpactProbability({ meanKm: [bx + ds * dx, bz + ds * dz], covarianceKm2: cov }, p.captureRadiusKm).probability;
+      sum += GL10.w[i] * normalPdf(sigma) * pDisk;
+    }
+    total += 0.5 * width * sum;
+  }
+  return Math.min(1, Math.max(0, total));
+}
