@@ -12,7 +12,8 @@ import type { PlainLanguage, PlainStatement } from '../schemas/releases';
 
 /** The caution shown with every public release (the office's own standing text). */
 export const PUBLIC_CAUTION =
-  'These figures describe what is known about the orbit today. They are estimates, not forecasts of what will happen: ' +
+  'These figures are analysis aids; official impact-risk statements come from the responsible national and ' +
+  'international authorities. They describe what is known about the orbit today. They are estimates, not forecasts of what will happen: ' +
   'as new observations come in they change, and for most objects the chance of impact falls to zero. ' +
   'This office does not ask anyone to take action; follow the advice of your civil-protection authorities.';
 

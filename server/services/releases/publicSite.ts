@@ -70,7 +70,7 @@ function layout(args: { title: string; officeName: string; body: string }): stri
 <main id="main">
 ${args.body}
 </main>
-<footer class="site"><p>Published by ${escapeHtml(args.officeName)}. Times are in UTC.</p></footer>
+<footer class="site"><p>Published by ${escapeHtml(args.officeName)}. Times are in UTC. Figures on this site are analysis aids; official impact-risk statements come from the responsible national and international authorities.</p></footer>
 </body>
 </html>
 `;
