@@ -4,7 +4,7 @@ import { RandomStream, SplitMix64, Xoshiro256StarStar, cloneStreamSeed } from '.
 const M64 = (1n << 64n) - 1n;
 const rotl = (x: bigint, k: bigint) => ((x << k) | (x >> (64n - k))) & M64;
 
-/** Straight BigInt transcription of the xoshiro256** reference C code (Blackman & Vigna, prng.di.unimi.it). */
+/** Straight BigInt port of the xoshiro256** reference C code (Blackman & Vigna, prng.di.unimi.it). */
 function referenceXoshiro(state: bigint[]) {
   const s = state.map((v) => v & M64);
   return () => {
@@ -20,7 +20,7 @@ function referenceXoshiro(state: bigint[]) {
   };
 }
 
-/** BigInt transcription of SplitMix64 (Steele, Lea & Flood 2014; reference code by S. Vigna). */
+/** BigInt port of SplitMix64 (Steele, Lea & Flood 2014; reference code by S. Vigna). */
 function referenceSplitMix(seed: bigint) {
   let x = seed & M64;
   return () => {
@@ -58,7 +58,7 @@ describe('xoshiro256**', () => {
     expect(Xoshiro256StarStar.fromState([1n, 2n, 3n, 4n]).nextBigInt()).toBe(11520n);
   });
 
-  it('matches a BigInt transcription of the reference code for 3,000 outputs from several states', () => {
+  it('matches a BigInt port of the reference code for 3,000 outputs from several states', () => {
     for (const seed of [1n, 42n, M64, 0xdeadbeefcafef00dn]) {
       const sm = referenceSplitMix(seed);
       const state = [sm(), sm(), sm(), sm()];

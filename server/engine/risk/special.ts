@@ -4,7 +4,7 @@
  *
  * erfc: W. J. Cody, "Rational Chebyshev approximations for the error function", Math. Comp. 23 (1969) 631-638,
  * as implemented in Cody's SPECFUN routine CALERF (Netlib). The coefficient sets below are the published CALERF
- * ones (cross-read in several independent public transcriptions). For x > 0.46875 erfc is computed directly from
+ * ones (cross-read in several independent public copies). For x > 0.46875 erfc is computed directly from
  * exp(-x^2) times a rational function — never as 1 - erf — and exp(-x^2) is split as
  * exp(-xs^2) exp(-(x-xs)(x+xs)) with xs = trunc(16x)/16 (Cody's device) so that the rounding error of x^2 is not
  * amplified by the exponential.
