@@ -57,7 +57,8 @@ const vitest = spawnSync(
 try {
   const report = JSON.parse(readFileSync(jsonFile, 'utf8'));
   const passed = report.numPassedTests ?? 0;
-  const failed = (report.numFailedTests ?? 0) + (report.numFailedTestSuites ?? 0);
+  // A file that fails to load counts as one failure even when no test in it ran.
+  const failed = (report.numFailedTests ?? 0) || (vitest.status !== 0 ? Math.max(1, report.numFailedTestSuites ?? 0) : 0);
   const skipped = (report.numPendingTests ?? 0) + (report.numTodoTests ?? 0);
   console.log(`Tests: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);
   if (passed === 0) {
