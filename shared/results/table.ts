@@ -55,11 +55,39 @@ export type EncounterRow = {
   windowEdge: boolean;
 };
 
+type ImpactProbabilityInput = NonNullable<Parameters<typeof describeImpactProbability>[0]>;
+type ProbabilityColumns = Pick<
+  EncounterRow,
+  | 'ip' | 'ipLow95' | 'ipHigh95' | 'ipUpperBound95' | 'ipText' | 'ipMethod' | 'ipMethodDetail' | 'ipOdds' | 'ipLinear'
+  | 'ipMonteCarlo' | 'ipMonteCarloHits' | 'ipMonteCarloSamples' | 'ipMonteCarloCi95' | 'ipMonteCarloUpperBound95' | 'ipLov'
+>;
+
+/** The impact-probability columns of a row: the rated figure with its interval or bound, and every method's own. */
+function probabilityColumns(ip: ImpactProbabilityInput, ratingSource: string | null): ProbabilityColumns {
+  const s = describeImpactProbability(ip, ratingSource);
+  const mc = ip.monteCarlo;
+  return {
+    ip: s.value,
+    ipLow95: s.method === 'Monte Carlo' ? s.low : null,
+    ipHigh95: s.method === 'Monte Carlo' && s.value !== null ? s.high : null,
+    ipUpperBound95: s.value === null && s.high !== null ? s.high : null,
+    ipText: s.text,
+    ipMethod: s.method,
+    ipMethodDetail: s.methodDetail,
+    ipOdds: s.odds,
+    ipLinear: ip.linear,
+    ipMonteCarlo: mc?.estimate ?? null,
+    ipMonteCarloHits: mc?.hits ?? null,
+    ipMonteCarloSamples: mc?.samples ?? null,
+    ipMonteCarloCi95: mc?.ci95 ? [mc.ci95[0], mc.ci95[1]] : null,
+    ipMonteCarloUpperBound95: mc?.upperBound95 ?? null,
+    ipLov: ip.lov,
+  };
+}
+
 /** Every approach, then every window found by Monte Carlo or LOV alone, in time order within each group. */
 export function encounterRows(result: AssessmentResult): EncounterRow[] {
   const rows: EncounterRow[] = result.approaches.map((a, i) => {
-    const s = describeImpactProbability(a.impactProbability, a.ratingProbabilitySource ?? null);
-    const mc = a.impactProbability.monteCarlo;
     return {
       kind: 'approach',
       index: i,
@@ -72,21 +100,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       distance3SigmaKm: a.distanceRangeKm ? [a.distanceRangeKm.threeSigma[0], a.distanceRangeKm.threeSigma[1]] : null,
       relativeSpeedKmS: a.relativeSpeedKmS,
       vInfinityKmS: a.vInfinityKmS,
-      ip: s.value,
-      ipLow95: s.method === 'Monte Carlo' ? s.low : null,
-      ipHigh95: s.method === 'Monte Carlo' && s.value !== null ? s.high : null,
-      ipUpperBound95: s.value === null && s.high !== null ? s.high : null,
-      ipText: s.text,
-      ipMethod: s.method,
-      ipMethodDetail: s.methodDetail,
-      ipOdds: s.odds,
-      ipLinear: a.impactProbability.linear,
-      ipMonteCarlo: mc?.estimate ?? null,
-      ipMonteCarloHits: mc?.hits ?? null,
-      ipMonteCarloSamples: mc?.samples ?? null,
-      ipMonteCarloCi95: mc?.ci95 ? [mc.ci95[0], mc.ci95[1]] : null,
-      ipMonteCarloUpperBound95: mc?.upperBound95 ?? null,
-      ipLov: a.impactProbability.lov,
+      ...probabilityColumns(a.impactProbability, a.ratingProbabilitySource ?? null),
       palermo: a.palermo,
       torino: a.torino,
       energyMt: { nominal: a.energyMt.nominal, low: a.energyMt.low, high: a.energyMt.high },
@@ -97,8 +111,6 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
     };
   });
   (result.otherWindows ?? []).forEach((w, i) => {
-    const s = describeImpactProbability(w.impactProbability, w.ratingProbabilitySource ?? null);
-    const mc = w.impactProbability.monteCarlo;
     rows.push({
       kind: 'window',
       index: i,
@@ -111,21 +123,7 @@ export function encounterRows(result: AssessmentResult): EncounterRow[] {
       distance3SigmaKm: w.minDistanceKm ? [w.minDistanceKm.min, w.minDistanceKm.max] : null,
       relativeSpeedKmS: null,
       vInfinityKmS: w.vInfinityKmS,
-      ip: s.value,
-      ipLow95: s.method === 'Monte Carlo' ? s.low : null,
-      ipHigh95: s.method === 'Monte Carlo' && s.value !== null ? s.high : null,
-      ipUpperBound95: s.value === null && s.high !== null ? s.high : null,
-      ipText: s.text,
-      ipMethod: s.method,
-      ipMethodDetail: s.methodDetail,
-      ipOdds: s.odds,
-      ipLinear: w.impactProbability.linear,
-      ipMonteCarlo: mc?.estimate ?? null,
-      ipMonteCarloHits: mc?.hits ?? null,
-      ipMonteCarloSamples: mc?.samples ?? null,
-      ipMonteCarloCi95: mc?.ci95 ? [mc.ci95[0], mc.ci95[1]] : null,
-      ipMonteCarloUpperBound95: mc?.upperBound95 ?? null,
-      ipLov: w.impactProbability.lov,
+      ...probabilityColumns(w.impactProbability, w.ratingProbabilitySource ?? null),
       palermo: w.palermo,
       torino: w.torino,
       energyMt: { nominal: w.energyMt.nominal, low: w.energyMt.low, high: w.energyMt.high },
