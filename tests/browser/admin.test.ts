@@ -16,6 +16,7 @@ import {
   newContext,
   screenshot,
   signIn,
+  signInAs,
   waitForHeading,
   watchPageErrors,
 } from './harness';
@@ -61,8 +62,7 @@ describe('admin users', () => {
     const admin = await adminCtx.newPage();
     const adminErrors = watchPageErrors(admin);
     const creds = demoCredentials('admin');
-    await signIn(admin, creds.email, creds.password);
-    await admin.waitForURL((u) => u.pathname === '/');
+    await signInAs(admin, 'admin');
 
     // From home, the "Invite a colleague" task leads to the form.
     await admin.getByRole('link', { name: /Invite a colleague/ }).click();
@@ -203,8 +203,7 @@ describe('account', () => {
     const errors = watchPageErrors(page, [401, 422]); // 422: the wrong current password, on purpose
     const { email, password } = demoCredentials('liaison');
     const newPassword = 'grey-gull-over-the-sound-7';
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    await signInAs(page, 'liaison');
     await page.getByRole('link', { name: /Change your password/ }).click();
     expect(await waitForHeading(page, 'Your account')).toBe('Your account');
 
@@ -249,9 +248,7 @@ describe('error states', () => {
   it('shows a failed user list with the server message and recovers with "Try again"', async () => {
     const context = await newContext(browser, server.url);
     const page = await context.newPage();
-    const { email, password } = demoCredentials('admin');
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    await signInAs(page, 'admin');
     // GET /api/users fails with the uniform error body (through the client's own retries) until
     // the test lets requests through again.
     let failing = true;

@@ -8,7 +8,17 @@ import { readFileSync } from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, signOut, waitForHeading, watchPageErrors } from './harness';
+import {
+  demoCredentials,
+  ensureClientBuilt,
+  launchBrowser,
+  screenshot,
+  signedInPage,
+  signInAs,
+  signOut,
+  waitForHeading,
+  type DemoRole,
+} from './harness';
 
 let server: Awaited<ReturnType<typeof startTestServer>>;
 let browser: Browser;
@@ -49,30 +59,12 @@ let firstRunId = 0;
 let approvedBulletinId = 0;
 let objectIdOfN4 = 0;
 
-async function signedInPage(role: Parameters<typeof demoCredentials>[0]) {
-  const context = await newContext(browser, server.url);
-  const page = await context.newPage();
-  const errors = watchPageErrors(page, [401, 409]);
-  const { email, password } = demoCredentials(role);
-  await signIn(page, email, password);
-  await page.waitForURL((u) => u.pathname === '/');
-  return { context, page, errors };
-}
+const signedIn = (role: DemoRole) => signedInPage(browser, server.url, role, { expectedStatuses: [401, 409] });
 
 describe('bulletins in the browser', () => {
   it('an analyst drafts with a linked figure and submits; another user approves; the PDF downloads', async () => {
-    const context = await newContext(browser, server.url);
-    const page = await context.newPage();
-    const errors = watchPageErrors(page);
-    const refused: string[] = [];
-    page.on('response', (r) => {
-      if (r.status() >= 400 && r.status() !== 401) refused.push(`${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
-    });
-
     // --- the analyst drafts
-    const analyst = demoCredentials('analyst');
-    await signIn(page, analyst.email, analyst.password);
-    await page.waitForURL((u) => u.pathname === '/');
+    const { context, page, errors, refused } = await signedInPage(browser, server.url, 'analyst');
     const objects = await apiJson(page, 'GET', '/api/objects?q=HSO-26-N4');
     const objectId = objects.items[0].id as number;
     const runId = await finishedRun(page, objectId);
@@ -148,9 +140,7 @@ describe('bulletins in the browser', () => {
     await signOut(page);
 
     // --- a reviewer signs off
-    const reviewer = demoCredentials('reviewer');
-    await signIn(page, reviewer.email, reviewer.password);
-    await page.waitForURL((u) => u.pathname === '/');
+    await signInAs(page, 'reviewer');
     await page.goto(`/bulletins/${bulletinId}`);
     const panel = page.getByTestId('review-panel');
     await panel.waitFor();
@@ -186,7 +176,7 @@ describe('bulletins in the browser', () => {
   it('communications sends the approved version to a list; the liaison acknowledges; the sender sees it', async () => {
     expect(approvedBulletinId).toBeGreaterThan(0);
     // a government list with the demo liaison (admins manage stakeholder lists)
-    const admin = await signedInPage('admin');
+    const admin = await signedIn('admin');
     const { users } = await apiJson(admin.page, 'GET', '/api/users');
     const liaison = (users as { id: number; email: string; name: string }[]).find((u) => u.email === demoCredentials('liaison').email)!;
     await admin.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Bulletins', exact: true }).click();
@@ -207,7 +197,7 @@ describe('bulletins in the browser', () => {
     expect(admin.errors).toEqual([]);
     await admin.context.close();
 
-    const comms = await signedInPage('communications');
+    const comms = await signedIn('communications');
     await comms.page.goto(`/bulletins/${approvedBulletinId}`);
     await comms.page.getByRole('button', { name: 'Distribute…' }).click();
     const dialog = comms.page.getByRole('dialog', { name: 'Distribute version 1' });
@@ -222,7 +212,7 @@ describe('bulletins in the browser', () => {
     expect(await card.textContent()).toContain('not yet');
     expect(await card.textContent()).toContain('outside address');
 
-    const liaisonPage = await signedInPage('liaison');
+    const liaisonPage = await signedIn('liaison');
     const lp = liaisonPage.page;
     await lp.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Briefings', exact: true }).click();
     expect(await waitForHeading(lp, 'Briefings')).toBe('Briefings');
@@ -252,7 +242,7 @@ describe('bulletins in the browser', () => {
 
   it('marks a figure out of date after a newer run, asks for a reason to submit, rebinds; a concurrent save keeps both copies', async () => {
     expect(firstRunId).toBeGreaterThan(0);
-    const { context, page, errors } = await signedInPage('analyst');
+    const { context, page, errors } = await signedIn('analyst');
     const doc = {
       type: 'doc',
       content: [
@@ -359,7 +349,7 @@ describe('bulletins in the browser', () => {
 
   it('amending the distributed bulletin and approving again gives version 2 with readable differences', async () => {
     expect(approvedBulletinId).toBeGreaterThan(0);
-    const a = await signedInPage('analyst');
+    const a = await signedIn('analyst');
     await a.page.goto('/bulletins');
     await a.page.getByTestId(`bulletin-row-${approvedBulletinId}`).waitFor();
     expect(await a.page.getByTestId(`bulletin-row-${approvedBulletinId}`).textContent()).toContain('Distributed');
@@ -383,7 +373,7 @@ describe('bulletins in the browser', () => {
     expect(a.errors).toEqual([]);
     await a.context.close();
 
-    const r = await signedInPage('reviewer');
+    const r = await signedIn('reviewer');
     await r.page.goto(`/bulletins/${approvedBulletinId}`);
     const panel = r.page.getByTestId('review-panel');
     await panel.waitFor();
@@ -407,7 +397,7 @@ describe('bulletins in the browser', () => {
   }, 120_000);
 
   it('a reviewer requests changes with a comment; the author sees it and revises; on a phone the editor still fits', async () => {
-    const a = await signedInPage('analyst');
+    const a = await signedIn('analyst');
     const created = await apiJson(a.page, 'POST', '/api/bulletins', {
       objectId: objectIdOfN4,
       title: 'Draft for a change request',
@@ -418,7 +408,7 @@ describe('bulletins in the browser', () => {
     await a.page.getByRole('dialog', { name: 'Submit for review' }).getByRole('button', { name: 'Submit for review' }).click();
     await a.page.getByTestId('bulletin-state').filter({ hasText: 'In review' }).first().waitFor();
 
-    const r = await signedInPage('reviewer');
+    const r = await signedIn('reviewer');
     await r.page.goto(`/bulletins/${created.id}`);
     const panel = r.page.getByTestId('review-panel');
     await panel.waitFor();

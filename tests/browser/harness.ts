@@ -112,10 +112,18 @@ export async function launchBrowser(): Promise<Browser> {
   });
 }
 
-/** A fresh context (own cookies) with a desktop-sized viewport and the server as base URL. */
-export async function newContext(browser: Browser, baseURL: string, viewport = { width: 1280, height: 860 }): Promise<BrowserContext> {
-  const context = await browser.newContext({ baseURL, viewport, locale: 'en-GB', timezoneId: 'UTC' });
-  context.setDefaultTimeout(10_000);
+/**
+ * A fresh context (own cookies) with a desktop-sized viewport and the server as base URL. The clock runs in UTC
+ * unless `timezoneId` names another IANA zone; `timeoutMs` is the default wait of every action.
+ */
+export async function newContext(
+  browser: Browser,
+  baseURL: string,
+  viewport = { width: 1280, height: 860 },
+  { timezoneId = 'UTC', timeoutMs = 10_000 }: { timezoneId?: string; timeoutMs?: number } = {},
+): Promise<BrowserContext> {
+  const context = await browser.newContext({ baseURL, viewport, locale: 'en-GB', timezoneId });
+  context.setDefaultTimeout(timeoutMs);
   return context;
 }
 
@@ -132,6 +140,53 @@ export async function signIn(page: Page, email: string, password: string): Promi
   await page.getByLabel('E-mail address').fill(email);
   await page.getByLabel('Password', { exact: true }).fill(password);
   await page.getByRole('button', { name: 'Sign in' }).click();
+}
+
+/** Sign in as a demo role through the sign-in form and wait until home ("/") is shown. */
+export async function signInAs(page: Page, role: DemoRole): Promise<void> {
+  const { email, password } = demoCredentials(role);
+  await signIn(page, email, password);
+  try {
+    await page.waitForURL((u) => u.pathname === '/');
+  } catch (e) {
+    throw new Error(`Signing in as ${role} did not reach home; the page is at ${page.url()} showing "${await mainHeading(page).catch(() => '?')}"`, { cause: e });
+  }
+}
+
+export interface SignedInPageOptions {
+  /** 4xx answers the test provokes on purpose: not counted in `errors` nor in `refused` (default [401]). */
+  expectedStatuses?: number[];
+  viewport?: { width: number; height: number };
+  /** IANA time zone of the browser's clock (default UTC). */
+  timezoneId?: string;
+  /** Default wait of every action, ms (default 10 000). */
+  timeoutMs?: number;
+}
+
+export interface SignedInPage {
+  context: BrowserContext;
+  page: Page;
+  /** Uncaught page errors and console errors (watchPageErrors). */
+  errors: string[];
+  /** Every answer with status >= 400 not in `expectedStatuses`, as "409 POST /api/path". */
+  refused: string[];
+}
+
+/**
+ * A fresh context and page signed in as a demo role (home shown), watching page errors and refused answers
+ * from before the sign-in on.
+ */
+export async function signedInPage(browser: Browser, baseURL: string, role: DemoRole, options: SignedInPageOptions = {}): Promise<SignedInPage> {
+  const { expectedStatuses = [401], viewport, timezoneId, timeoutMs } = options;
+  const context = await newContext(browser, baseURL, viewport, { timezoneId, timeoutMs });
+  const page = await context.newPage();
+  const errors = watchPageErrors(page, expectedStatuses);
+  const refused: string[] = [];
+  page.on('response', (r) => {
+    if (r.status() >= 400 && !expectedStatuses.includes(r.status())) refused.push(`${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
+  });
+  await signInAs(page, role);
+  return { context, page, errors, refused };
 }
 
 /** The labels of the main navigation, in order. */

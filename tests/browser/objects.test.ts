@@ -6,7 +6,7 @@ import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, isVisible, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+import { ensureClientBuilt, isVisible, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
 
 let server: Awaited<ReturnType<typeof startTestServer>>;
 let browser: Browser;
@@ -24,12 +24,7 @@ afterAll(async () => {
 
 describe('objects as an analyst', () => {
   it('lists, sorts, searches, compares versions and uploads a solution', async () => {
-    const context = await newContext(browser, server.url);
-    const page = await context.newPage();
-    const errors = watchPageErrors(page, [401, 422]);
-    const { email, password } = demoCredentials('analyst');
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', { expectedStatuses: [401, 422] });
 
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Objects', exact: true }).click();
     expect(await waitForHeading(page, 'Objects')).toBe('Objects');

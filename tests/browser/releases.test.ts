@@ -14,7 +14,7 @@ import type { Browser, Page } from 'playwright-core';
 import { users } from '../../server/db/schema';
 import { PUBLIC_CAUTION } from '../../shared/releases/plainLanguage';
 import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signedInPage, waitForHeading, watchPageErrors } from './harness';
 
 let server: Awaited<ReturnType<typeof startTestServer>>;
 let browser: Browser;
@@ -97,20 +97,8 @@ async function approvedBulletin(page: Page): Promise<{ id: number; title: string
   return { id: b.id, title };
 }
 
-async function signedIn(role: 'analyst' | 'reviewer' | 'communications', timezoneId = 'UTC') {
-  const context = await browser.newContext({ baseURL: server.url, viewport: { width: 1280, height: 900 }, locale: 'en-GB', timezoneId });
-  context.setDefaultTimeout(20_000);
-  const page = await context.newPage();
-  const errors = watchPageErrors(page, [401]);
-  const refused: string[] = [];
-  page.on('response', (r) => {
-    if (r.status() >= 400 && r.status() !== 401) refused.push(`${r.status()} ${r.request().method()} ${new URL(r.url()).pathname}`);
-  });
-  const { email, password } = demoCredentials(role);
-  await signIn(page, email, password);
-  await page.waitForURL((u) => u.pathname === '/');
-  return { context, page, errors, refused };
-}
+const signedIn = (role: 'analyst' | 'reviewer' | 'communications', timezoneId = 'UTC') =>
+  signedInPage(browser, server.url, role, { viewport: { width: 1280, height: 900 }, timezoneId, timeoutMs: 20_000 });
 
 /** Poll `check` (each call may reload) until it returns true or the time is up. */
 async function eventually(what: string, check: () => Promise<boolean>, timeoutMs: number, everyMs = 500): Promise<void> {

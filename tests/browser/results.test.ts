@@ -8,7 +8,7 @@ import fs from 'node:fs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Locator, Page } from 'playwright-core';
 import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+import { ensureClientBuilt, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
 
 let server: Awaited<ReturnType<typeof startTestServer>>;
 let browser: Browser;
@@ -59,12 +59,10 @@ async function countInk(page: Page, el: Locator, box: { left: number; top: numbe
 
 describe('run results in the browser', () => {
   it('an analyst uploads a solution, runs it, and reads the table and the b-plane plot', async () => {
-    const context = await newContext(browser, server.url, { width: 1280, height: 900 });
-    const page = await context.newPage();
-    const errors = watchPageErrors(page, [401, 422]);
-    const { email, password } = demoCredentials('analyst');
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', {
+      expectedStatuses: [401, 422],
+      viewport: { width: 1280, height: 900 },
+    });
 
     const objects = await (await page.request.get(`${server.url}/api/objects?q=HSO-26-N4`)).json();
     const objectId = objects.items[0].id as number;

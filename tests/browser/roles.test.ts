@@ -10,14 +10,14 @@ import { AREAS } from '../../src/auth/areas';
 import { startTestServer } from '../helpers/testServer';
 import {
   DEMO_ROLES,
-  demoCredentials,
   ensureClientBuilt,
   isVisible,
   launchBrowser,
   navLabels,
   newContext,
   screenshot,
-  signIn,
+  signedInPage,
+  signInAs,
   signOut,
   waitForHeading,
   watchPageErrors,
@@ -84,13 +84,7 @@ describe('signed out', () => {
 
 describe.each(DEMO_ROLES)('role %s', (role) => {
   it('signs in, sees exactly its areas, visits home and users, signs out', async () => {
-    const context = await newContext(browser, server.url);
-    const page = await context.newPage();
-    const errors = watchPageErrors(page);
-    const { email, password } = demoCredentials(role);
-
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    const { context, page, errors } = await signedInPage(browser, server.url, role);
     expect(await waitForHeading(page, /^Good to see you/)).toMatch(/^Good to see you/);
 
     // Navigation: exactly the expected areas, and the same as the shared ability allows.
@@ -145,9 +139,7 @@ describe('small screen', () => {
   it('hides the navigation behind a menu button that reveals the same areas', async () => {
     const context = await newContext(browser, server.url, { width: 390, height: 844 });
     const page = await context.newPage();
-    const { email, password } = demoCredentials('admin');
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    await signInAs(page, 'admin');
     const menu = page.getByRole('button', { name: 'Menu' });
     expect(await menu.getAttribute('aria-expanded')).toBe('false');
     expect(await page.getByRole('navigation', { name: 'Main' }).isVisible()).toBe(false);

@@ -6,7 +6,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signIn, waitForHeading, watchPageErrors } from './harness';
+import { ensureClientBuilt, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
 
 let server: Awaited<ReturnType<typeof startTestServer>>;
 let browser: Browser;
@@ -24,12 +24,7 @@ afterAll(async () => {
 
 describe('assessment runs in the browser', () => {
   it('an analyst queues a run, watches its progress and reads the encounter table', async () => {
-    const context = await newContext(browser, server.url);
-    const page = await context.newPage();
-    const errors = watchPageErrors(page, [401, 422]);
-    const { email, password } = demoCredentials('analyst');
-    await signIn(page, email, password);
-    await page.waitForURL((u) => u.pathname === '/');
+    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', { expectedStatuses: [401, 422] });
 
     const objects = await (await page.request.get(`${server.url}/api/objects?q=HSO-26-N4`)).json();
     const objectId = objects.items[0].id as number;
