@@ -32,6 +32,7 @@ import type { Db } from '../../db/client';
 import { assessmentRuns, bulletinEvents, bulletins, bulletinVersions, staleFigureConfirmations, trackedObjects, users, type BulletinRow, type BulletinVersionRow } from '../../db/schema';
 import { conflict, forbidden, HttpError, notFound, unprocessable } from '../../errors';
 import { canonicalJson, sha256Hex } from './canonical';
+import { saveDraftRevision } from '../drafts';
 import { diffVersions } from './diff';
 import { figureStatuses, loadRuns, snapshotFigures } from './runFigures';
 
@@ -225,22 +226,15 @@ export function createBulletinService(db: Db) {
       const current = row(id);
       const document = bulletinDocumentSchema.parse(body.document);
       checkRunsBelong(db, current.objectId, document);
-      const changed = db.transaction((tx) => {
-        const r = row(id, tx);
-        if (r.state !== 'draft' || r.revision !== body.revision) return false;
-        const n = tx
-          .update(bulletins)
-          .set({ documentJson: JSON.stringify(document), title: body.title ?? r.title, revision: r.revision + 1, updatedById: actor.id, updatedAt: new Date() })
-          .where(and(eq(bulletins.id, id), eq(bulletins.revision, body.revision), eq(bulletins.state, 'draft')))
-          .run().changes;
-        return n === 1;
+      return saveDraftRevision(db, bulletins, {
+        id,
+        revision: body.revision,
+        noun: 'bulletin',
+        actorId: actor.id,
+        row,
+        edits: (r) => ({ documentJson: JSON.stringify(document), title: body.title ?? r.title }),
+        present: (r) => detail(r, actor),
       });
-      const after = row(id);
-      if (!changed) {
-        const why = after.state !== 'draft' ? `The bulletin is ${after.state.replace('_', ' ')}, not a draft` : `The draft was saved meanwhile (revision ${after.revision}, you edited ${body.revision})`;
-        throw conflict(why, { current: detail(after, actor) });
-      }
-      return detail(after, actor);
     },
 
     transition(id: number, body: { action: BulletinAction; comment?: string; confirmedFigures?: ConfirmedFigure[]; staleReason?: string; revision?: number }, actor: Actor): Bulletin {

@@ -29,6 +29,7 @@ import { bulletins, bulletinVersions, releaseEvents, releases, releaseVersions, 
 import { conflict, forbidden, notFound, unprocessable } from '../../errors';
 import { canonicalJson, sha256Hex } from '../bulletins/canonical';
 import type { Actor } from '../bulletins/service';
+import { saveDraftRevision } from '../drafts';
 import type { MailService } from '../mail';
 import { initialReleaseDocument, releaseDocumentProblems } from './document';
 import { pressMail } from './pressMail';
@@ -360,30 +361,19 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
       const current = row(id);
       const document = body.document ? bulletinDocumentSchema.parse(body.document) : undefined;
       if (document) checkDocument(document, figuresOf(current));
-      const changed = db.transaction((tx) => {
-        const r = row(id, tx);
-        if (r.state !== 'draft' || r.revision !== body.revision) return false;
-        return (
-          tx
-            .update(releases)
-            .set({
-              documentJson: document ? JSON.stringify(document) : r.documentJson,
-              title: body.title ?? r.title,
-              summary: body.summary ?? r.summary,
-              revision: r.revision + 1,
-              updatedById: actor.id,
-              updatedAt: new Date(),
-            })
-            .where(and(eq(releases.id, id), eq(releases.revision, body.revision), eq(releases.state, 'draft')))
-            .run().changes === 1
-        );
+      return saveDraftRevision(db, releases, {
+        id,
+        revision: body.revision,
+        noun: 'release',
+        actorId: actor.id,
+        row,
+        edits: (r) => ({
+          documentJson: document ? JSON.stringify(document) : r.documentJson,
+          title: body.title ?? r.title,
+          summary: body.summary ?? r.summary,
+        }),
+        present: (r) => detail(r, actor),
       });
-      const after = row(id);
-      if (!changed) {
-        const why = after.state !== 'draft' ? `The release is ${after.state.replace('_', ' ')}, not a draft` : `The draft was saved meanwhile (revision ${after.revision}, you edited ${body.revision})`;
-        throw conflict(why, { current: detail(after, actor) });
-      }
-      return detail(after, actor);
     },
 
     /** Every user action of the workflow table (schedule/reschedule with publishAt, cancel with a comment). */
