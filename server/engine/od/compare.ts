@@ -1,0 +1,186 @@
+/**
+ * Gravity-only versus non-gravitational fit (METHODS.md §9.2; issue 8 item 5):
+ *
+ * - Δχ² = χ²(gravity-only) − χ²(non-grav) summed over the observations used in BOTH fits (plain ξᵀWξ, not the
+ *   outlier χ_i²), its p-value P(χ²_k ≥ Δχ²) for k added parameters (likelihood-ratio test), and that p-value as a
+ *   two-sided Gaussian sigma (statistics.ts);
+ * - |A_k|/σ_k (detections are usually quoted at S/N ≳ 3; Farnocchia et al. 2013 [M via METHODS §9.2]);
+ * - the 1-sigma of every element in both fits and their ratio (the added parameters widen them, METHODS §9.2);
+ * - a residual trend test for each fit: the normalised residuals (RA·cos δ / σ and δ / σ) of the used
+ *   observations are fitted with a quadratic in time (time scaled to [−1, 1] over the arc); the trend is the
+ *   slope + curvature, tested against the offset-only model with an F-test
+ *     F = (Δχ²_trend / 4) / (χ²_quadratic / (2m − 6)),  d1 = 4, d2 = 2m − 6
+ *   (two components x two trend terms; Press et al. 2007 §14.2 for the F distribution via the incomplete beta),
+ *   which does not depend on how well the weights are scaled; reported as a two-sided Gaussian sigma.
+ *   Fewer than 3 distinct times per component lower the polynomial degree.
+ */
+import type { FitComparison, FitResult, NonGravTerm } from '../../../shared/schemas/od';
+import { incompleteBetaRegularized } from '../risk/special';
+import { solveNormal } from './leastSquares';
+import { logChiSquareSurvival, sigmaFromLogPValue } from './statistics';
+
+/** A p-value below this underflows; its sigma is reported as this bound. */
+const MIN_LOG_P = Math.log(1e-300);
+
+export interface TrendResult {
+  sigma: number;
+  /** F statistic and its degrees of freedom */
+  f: number;
+  d1: number;
+  d2: number;
+  /** trend coefficients per component, normalised units: [slope, curvature] */
+  raCosDec: number[];
+  dec: number[];
+}
+
+function polyFit(t: number[], z: number[], degree: number): { coef: Float64Array; chi2: number } | null {
+  const n = degree + 1;
+  const normal = new Float64Array(n * n);
+  const rhs = new Float64Array(n);
+  for (let i = 0; i < t.length; i++) {
+    const row = Array.from({ length: n }, (_, k) => Math.pow(t[i], k));
+    for (let a = 0; a < n; a++) {
+      rhs[a] += row[a] * z[i];
+      for (let b = 0; b < n; b++) normal[a * n + b] += row[a] * row[b];
+    }
+  }
+  const sol = solveNormal(normal, rhs, n, false);
+  if (!sol) return null;
+  let chi2 = 0;
+  for (let i = 0; i < t.length; i++) {
+    let m = 0;
+    for (let k = 0; k < n; k++) m += sol.step[k] * Math.pow(t[i], k);
+    chi2 += (z[i] - m) ** 2;
+  }
+  return { coef: sol.step, chi2 };
+}
+
+/** Residual trend of one fit's used residuals (see the header). */
+export function residualTrend(fit: Pick<FitResult, 'residuals'>): TrendResult {
+  const used = fit.residuals.filter((r) => r.status === 'used');
+  const times = used.map((r) => r.obsTimeTdbDays);
+  const t0 = Math.min(...times);
+  const t1 = Math.max(...times);
+  const half = (t1 - t0) / 2 || 1;
+  const t = times.map((x) => (x - (t0 + half)) / half);
+  const distinct = new Set(times.map((x) => Math.round(x * 1e4))).size;
+  const degree = Math.min(2, distinct - 1);
+  const empty: TrendResult = { sigma: 0, f: 0, d1: 0, d2: 0, raCosDec: [], dec: [] };
+  if (degree < 1) return empty;
+  let dChi = 0;
+  let rest = 0;
+  const coefs: number[][] = [];
+  for (const comp of ['ra', 'dec'] as const) {
+    const z = used.map((r) => (comp === 'ra' ? r.raCosDecArcsec / r.sigmaRaArcsec : r.decArcsec / r.sigmaDecArcsec));
+    const full = polyFit(t, z, degree);
+    const off = polyFit(t, z, 0);
+    if (!full || !off) return empty;
+    dChi += off.chi2 - full.chi2;
+    rest += full.chi2;
+    coefs.push(Array.from(full.coef.slice(1)));
+  }
+  const d1 = 2 * degree;
+  const d2 = 2 * used.length - 2 * (degree + 1);
+  if (d2 <= 0) return empty;
+  const f = rest > 0 ? dChi / d1 / (rest / d2) : dChi > 0 ? Infinity : 0;
+  // P(F > f) = I_x(d2/2, d1/2), x = d2 / (d2 + d1 f)
+  let logP: number;
+  if (!Number.isFinite(f)) logP = MIN_LOG_P;
+  else {
+    const p = incompleteBetaRegularized(d2 / (d2 + d1 * Math.max(0, f)), d2 / 2, d1 / 2);
+    logP = p > 0 ? Math.log(p) : MIN_LOG_P;
+  }
+  return { sigma: sigmaFromLogPValue(Math.max(logP, MIN_LOG_P)), f, d1, d2, raCosDec: coefs[0], dec: coefs[1] };
+}
+
+const ELEMENT_LABELS: Record<string, string> = {
+  perihelionDistanceAu: 'perihelion distance q (AU)',
+  eccentricity: 'eccentricity e',
+  inclinationDeg: 'inclination i (deg)',
+  ascendingNodeDeg: 'ascending node (deg)',
+  argPerihelionDeg: 'argument of perihelion (deg)',
+  perihelionTimeTdbDays: 'time of perihelion (TDB days)',
+};
+
+const fmt = (x: number, d = 1) => (Math.abs(x) >= 1e4 || (Math.abs(x) < 1e-2 && x !== 0) ? x.toExponential(d) : x.toFixed(d));
+
+/**
+ * Compare a gravity-only and a non-gravitational fit of the same observations. plainChi2 holds, for each fit,
+ * ξ_iᵀ W_i ξ_i of every observation (same order as the residuals).
+ */
+export function compareFits(
+  gravity: FitResult,
+  nonGrav: FitResult,
+  terms: readonly NonGravTerm[],
+  plainChi2: { gravityOnly: ArrayLike<number>; nonGrav: ArrayLike<number> },
+): FitComparison {
+  const usedG = new Set(gravity.residuals.filter((r) => r.status === 'used').map((r) => r.index));
+  let chiG = 0;
+  let chiN = 0;
+  let common = 0;
+  for (const r of nonGrav.residuals) {
+    if (r.status !== 'used' || !usedG.has(r.index)) continue;
+    chiG += plainChi2.gravityOnly[r.index];
+    chiN += plainChi2.nonGrav[r.index];
+    common++;
+  }
+  const k = terms.length;
+  const delta = chiG - chiN;
+  const logP = delta > 0 ? logChiSquareSurvival(delta, k) : 0;
+  const pValue = Math.exp(logP);
+  const significanceSigma = sigmaFromLogPValue(Math.max(logP, MIN_LOG_P));
+
+  const parameterSignificance = terms.map((term) => {
+    const idx = nonGrav.parameters.indexOf(term);
+    const value = nonGrav.nonGrav ? nonGrav.nonGrav[term] : 0;
+    const sigma = idx >= 0 && nonGrav.covariance ? Math.sqrt(Math.max(0, nonGrav.covariance[idx][idx])) : 0;
+    return { term, valueAuD2: value, sigmaAuD2: sigma, signalToNoise: sigma > 0 ? Math.abs(value) / sigma : 0 };
+  });
+
+  const elementSigmas = Object.keys(ELEMENT_LABELS).map((key) => {
+    const g = gravity.elements ? (gravity.elements as Record<string, { sigma: number | null }>)[key].sigma : null;
+    const n = nonGrav.elements ? (nonGrav.elements as Record<string, { sigma: number | null }>)[key].sigma : null;
+    return { element: key, gravityOnly: g, nonGrav: n, ratio: g !== null && n !== null && g > 0 ? n / g : null };
+  });
+
+  const tg = residualTrend(gravity);
+  const tn = residualTrend(nonGrav);
+  const description =
+    `Quadratic-in-time trend (slope and curvature) of the normalised residuals, F-test against an offset: ` +
+    `gravity-only ${fmt(tg.sigma)} sigma, non-gravitational ${fmt(tn.sigma)} sigma.`;
+
+  const bestSn = parameterSignificance.reduce((a, b) => (b.signalToNoise > a.signalToNoise ? b : a), parameterSignificance[0]);
+  const ratios = elementSigmas.filter((e) => e.ratio !== null).map((e) => e.ratio as number);
+  const widen = ratios.length ? Math.max(...ratios) : null;
+  const termsText = terms.map((t) => t.toUpperCase()).join(', ');
+  let verdict: string;
+  if (nonGrav.status !== 'converged') {
+    verdict = `The non-gravitational fit (${termsText}) did not converge (${nonGrav.message ?? 'no message'}); keep the gravity-only fit.`;
+  } else if (gravity.status !== 'converged') {
+    verdict = `The gravity-only fit did not converge (${gravity.message ?? 'no message'}) while the fit with ${termsText} did; the non-gravitational fit is the usable one.`;
+  } else if (significanceSigma >= 3 && bestSn && bestSn.signalToNoise >= 3) {
+    verdict =
+      `The non-gravitational fit is favoured: adding ${termsText} lowers chi-square by ${fmt(delta)} over ${common} common observations ` +
+      `(${fmt(significanceSigma)} sigma for ${k} added parameter${k > 1 ? 's' : ''}), ${bestSn.term.toUpperCase()} is ${fmt(bestSn.signalToNoise)} times its uncertainty` +
+      (tg.sigma >= 3 && tn.sigma < tg.sigma ? `, and the systematic trend in the gravity-only residuals (${fmt(tg.sigma)} sigma) drops to ${fmt(tn.sigma)} sigma` : '') +
+      (widen !== null ? `. The price is wider uncertainties (element 1-sigma up to ${fmt(widen)} times larger).` : '.');
+  } else if (significanceSigma >= 2 || (bestSn && bestSn.signalToNoise >= 2)) {
+    verdict =
+      `Marginal: adding ${termsText} lowers chi-square by ${fmt(delta)} (${fmt(significanceSigma)} sigma) and the largest A_k is ${fmt(bestSn?.signalToNoise ?? 0)} times its uncertainty, ` +
+      `below the usual detection level of 3; the gravity-only fit remains adequate unless the physics calls for the non-gravitational terms.`;
+  } else {
+    verdict =
+      `The gravity-only fit is adequate: adding ${termsText} lowers chi-square by only ${fmt(delta)} (${fmt(significanceSigma)} sigma) and no A_k reaches 3 times its uncertainty; ` +
+      `the non-gravitational fit would only widen the uncertainties${widen !== null ? ` (up to ${fmt(widen)} times)` : ''}.`;
+  }
+  return {
+    addedParameters: [...terms],
+    deltaChiSquare: delta,
+    pValue,
+    significanceSigma,
+    parameterSignificance,
+    elementSigmas,
+    residualTrend: { gravityOnlySigma: tg.sigma, nonGravSigma: tn.sigma, description },
+    verdict,
+  };
+}
