@@ -107,3 +107,64 @@ export function swetestStates(opts: {
     };
   });
 }
+
+// ---------------------------------------------------------------------------------------------------------------
+// Added for orbit determination (issue 8): apparent-place switches, topocentric observers, spherical output.
+// ---------------------------------------------------------------------------------------------------------------
+
+/**
+ * Which positions: 'geometric' = `-true` (no light-time, no aberration, no deflection); 'astrometric' =
+ * `-noaberr -nodefl` (light-time corrected, no aberration, no deflection: swetest -h calls this "astrometric
+ * positions").
+ */
+export type SwetestPlace = 'geometric' | 'astrometric';
+
+export type SwetestSpherical = { jdTt: number; raDeg: number; decDeg: number; distanceKm: number; deltaTSeconds: number };
+
+/**
+ * ICRS equatorial RA/Dec (degrees) and distance (km) of `body`, geocentric or topocentric (`topo`: east longitude deg,
+ * latitude deg, elevation m; `-topo[long,lat,elev]` of swetest -h). Also returns swetest's ΔT = TT − UT1 (seconds)
+ * for that instant, read from its header, so a test can use the same UT1 as swetest did.
+ * Format letter `a` is listed by `swetest -hform` as "right ascension hours decimal", but this build (2.10.03)
+ * prints decimal DEGREES with 7 decimals (0.0004"): checked in tests/unit/od-observer.test.ts against our own Moon
+ * direction (a factor 15 would show as degrees of difference).
+ */
+export function swetestSpherical(opts: {
+  body: keyof typeof SWETEST_BODY;
+  jdTt: number;
+  place: SwetestPlace;
+  topo?: { eastLongitudeDeg: number; latitudeDeg: number; elevationM: number };
+  /**
+   * 'icrs' (default): `-j2000 -icrs`; 'mean-j2000': `-j2000` (mean J2000 equator, frame bias applied);
+   * 'true-of-date': neither (true equator and equinox of date).
+   */
+  frame?: 'icrs' | 'mean-j2000' | 'true-of-date';
+}): SwetestSpherical {
+  const frame = opts.frame ?? 'icrs';
+  const args = [`-j${opts.jdTt.toFixed(9)}`, `-p${SWETEST_BODY[opts.body]}`, '-fadw', '-g,'];
+  if (frame !== 'true-of-date') args.push('-j2000');
+  if (frame === 'icrs') args.push('-icrs');
+  if (opts.place === 'geometric') args.push('-true');
+  else args.push('-noaberr', '-nodefl');
+  if (opts.topo) {
+    const lon = opts.topo.eastLongitudeDeg > 180 ? opts.topo.eastLongitudeDeg - 360 : opts.topo.eastLongitudeDeg;
+    args.push(`-topo${lon.toFixed(9)},${opts.topo.latitudeDeg.toFixed(9)},${opts.topo.elevationM.toFixed(3)}`);
+  }
+  const out = runSwetest(args);
+  const dt = /delta t:\s*([-+0-9.]+)\s*sec/.exec(out);
+  if (!dt) throw new Error(`swetest printed no delta t:\n${out}`);
+  const line = out
+    .split('\n')
+    .map((l) => l.trim())
+    .find((l) => /^-?\d+\.\d+,\s*-?\d+\.\d+,\s*\d+\.\d+,?$/.test(l));
+  if (!line) throw new Error(`cannot find the position line in swetest output:\n${out}`);
+  const [raDeg, decDeg, distanceKm] = line.split(',').map((s) => Number(s.trim()));
+  return { jdTt: opts.jdTt, raDeg, decDeg, distanceKm, deltaTSeconds: Number(dt[1]) };
+}
+
+/** Unit vector times distance (km) from swetest's spherical output. */
+export function vectorKmFromSpherical(s: { raDeg: number; decDeg: number; distanceKm: number }): [number, number, number] {
+  const a = (s.raDeg * Math.PI) / 180;
+  const d = (s.decDeg * Math.PI) / 180;
+  return [s.distanceKm * Math.cos(d) * Math.cos(a), s.distanceKm * Math.cos(d) * Math.sin(a), s.distanceKm * Math.sin(d)];
+}

@@ -1,0 +1,69 @@
+/**
+ * Heliocentric ICRF observer states for ground-based observations (METHODS.md §9.4):
+ *   r_obs = r_Earth(t) + r_site,GCRS(t),  v_obs = v_Earth(t) + v_site,GCRS(t)
+ * with the geocentre from the planetary ephemeris (heliocentric ICRF, AU, AU/d; server/engine/ephemeris) and the
+ * site vector of observatory.ts rotated by earthOrientation.ts. GCRS and ICRF axes are the same (no frame rotation
+ * beyond the neglected ~23 mas frame bias, see earthOrientation.ts); the relativistic GCRS->BCRS scaling of the
+ * 6378 km site vector (~1e-8 relative, sub-millimetre) is neglected.
+ */
+import type { Observatory } from '../../../shared/schemas/od';
+import { AU_KM, DAY_S } from '../constants';
+import { defaultEphemeris } from '../dynamics/ephemeris-source';
+import type { PlanetEphemeris } from '../dynamics/types';
+import { EARTH_INDEX } from '../ephemeris/bodies';
+import type { Vec3 } from '../vec';
+import { earthOrientationAt, siteGcrsKm } from './earthOrientation';
+import { siteVectorItrsKm } from './observatory';
+
+/** An observation names an observatory code that is not in the office's table. */
+export class UnknownObservatoryError extends Error {
+  readonly codes: string[];
+  constructor(codes: string[]) {
+    const list = [...new Set(codes)].sort();
+    super(`Unknown observatory code${list.length === 1 ? '' : 's'}: ${list.join(', ')} (add ${list.length === 1 ? 'it' : 'them'} to the observatory table first)`);
+    this.name = 'UnknownObservatoryError';
+    this.codes = list;
+  }
+}
+
+export type ObserverState = { positionAu: Vec3; velocityAuD: Vec3 };
+
+/** Geocentric site position (AU) and velocity (AU/d) in the GCRS of observatory `o` at a TDB instant. */
+export function siteGeocentricAu(o: Observatory, tdbDays: number): ObserverState {
+  const { positionKm, velocityKmS } = siteGcrsKm(siteVectorItrsKm(o), earthOrientationAt(tdbDays));
+  return {
+    positionAu: [positionKm[0] / AU_KM, positionKm[1] / AU_KM, positionKm[2] / AU_KM],
+    velocityAuD: [(velocityKmS[0] * DAY_S) / AU_KM, (velocityKmS[1] * DAY_S) / AU_KM, (velocityKmS[2] * DAY_S) / AU_KM],
+  };
+}
+
+/**
+ * Heliocentric ICRF observer position (AU) and velocity (AU/d) for each item, in input order. Throws
+ * UnknownObservatoryError (listing every missing code) before any computation when a code is not in the table.
+ * Without `ephemeris`, a Chebyshev cache over the items' span is built.
+ */
+export function observerStatesAu(
+  items: readonly { stn: string; obsTimeTdbDays: number }[],
+  observatories: readonly Observatory[],
+  ephemeris?: PlanetEphemeris,
+): ObserverState[] {
+  const table = new Map(observatories.map((o) => [o.code, o]));
+  const missing = items.filter((it) => !table.has(it.stn)).map((it) => it.stn);
+  if (missing.length > 0) throw new UnknownObservatoryError(missing);
+  if (items.length === 0) return [];
+  let eph = ephemeris;
+  if (!eph) {
+    const times = items.map((it) => it.obsTimeTdbDays);
+    eph = defaultEphemeris(Math.min(...times), Math.max(...times) + 1e-3);
+  }
+  const earth = new Float64Array(6);
+  return items.map((it) => {
+    if (!Number.isFinite(it.obsTimeTdbDays)) throw new RangeError(`observation time must be finite, got ${it.obsTimeTdbDays}`);
+    eph.stateInto(EARTH_INDEX, it.obsTimeTdbDays, earth);
+    const site = siteGeocentricAu(table.get(it.stn)!, it.obsTimeTdbDays);
+    return {
+      positionAu: [earth[0] + site.positionAu[0], earth[1] + site.positionAu[1], earth[2] + site.positionAu[2]],
+      velocityAuD: [earth[3] + site.velocityAuD[0], earth[4] + site.velocityAuD[1], earth[5] + site.velocityAuD[2]],
+    };
+  });
+}
