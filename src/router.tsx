@@ -21,6 +21,10 @@ import { BriefingPage } from './pages/briefings/BriefingPage';
 import { BriefingsPage } from './pages/briefings/BriefingsPage';
 import { ReleasePage } from './pages/releases/ReleasePage';
 import { ReleasesPage } from './pages/releases/ReleasesPage';
+import { ObservatoriesPage } from './pages/admin/ObservatoriesPage';
+import { AstrometryPage } from './pages/astrometry/AstrometryPage';
+import { FitPage } from './pages/fits/FitPage';
+import { ObjectFitsPage } from './pages/fits/ObjectFitsPage';
 
 export const router = createBrowserRouter([
   {
@@ -45,7 +49,40 @@ export const router = createBrowserRouter([
               { index: true, element: <ObjectsPage /> },
               { path: ':id', element: <ObjectPage /> },
               { path: ':id/compare', element: <ComparePage /> },
+              // orbit determination (issue 8): the same readers as solutions
+              {
+                path: ':id/astrometry',
+                element: (
+                  <RequireAbility action="read" subject="Solution">
+                    <AstrometryPage />
+                  </RequireAbility>
+                ),
+              },
+              {
+                path: ':id/fits',
+                element: (
+                  <RequireAbility action="read" subject="Solution">
+                    <ObjectFitsPage />
+                  </RequireAbility>
+                ),
+              },
             ],
+          },
+          {
+            path: 'fits/:id',
+            element: (
+              <RequireAbility action="read" subject="Solution">
+                <FitPage />
+              </RequireAbility>
+            ),
+          },
+          {
+            path: 'observatories',
+            element: (
+              <RequireAbility action="read" subject="Observatory">
+                <ObservatoriesPage />
+              </RequireAbility>
+            ),
           },
           {
             path: 'runs/:id',

@@ -1,7 +1,7 @@
 // One tracked object: its details (name, notes, watch status), its solution versions, adding a version,
 // and choosing two versions to compare.
 import { useState } from 'react';
-import { Link, useNavigate, useParams } from 'react-router';
+import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
 import { TRACKED_OBJECT_KIND_LABELS, type SolutionSummary } from '../../../shared/schemas/objects';
 import { useObject, useSolutions, useUpdateObject } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
@@ -10,6 +10,7 @@ import { formatNumber, formatUtc } from './format';
 import { SolutionDetail } from './SolutionDetail';
 import { UploadSolutionForm } from './UploadSolutionForm';
 import { ObjectRuns } from '../runs/ObjectRuns';
+import { ObjectOdLinks } from '../fits/ObjectOdLinks';
 
 function NotesEditor({ id, notes }: { id: number; notes: string }) {
   const update = useUpdateObject(id);
@@ -96,7 +97,9 @@ export function ObjectPage() {
   const solutions = useSolutions(id);
   const update = useUpdateObject(id);
   const [added, setAdded] = useState<number | null>(null);
-  const [shown, setShown] = useState<number | null>(null);
+  // ?version=N opens that version (links from an adopted orbit fit land here)
+  const [search] = useSearchParams();
+  const [shown, setShown] = useState<number | null>(() => (Number(search.get('version')) > 0 ? Number(search.get('version')) : null));
   if (object.isPending) return <LoadingState label="Loading the object…" />;
   if (object.isError) return <ErrorState error={object.error} onRetry={() => object.refetch()} />;
   const o = object.data;
@@ -130,6 +133,7 @@ export function ObjectPage() {
         )}
         {shown !== null && <SolutionDetail key={shown} objectId={id} version={shown} onClose={() => setShown(null)} />}
         {solutions.data && <ObjectRuns objectId={id} solutions={solutions.data} />}
+        <ObjectOdLinks objectId={id} />
         {ability.can('create', 'Solution') && <UploadSolutionForm objectId={id} onDone={setAdded} />}
       </div>
     </div>

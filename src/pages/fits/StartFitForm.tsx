@@ -1,0 +1,95 @@
+// Start an orbit fit of the object's astrometry (its non-excluded observations at queue time): epoch, the
+// non-gravitational terms of the second fit (none = gravity-only fit only), their law, outlier rejection, where
+// the iteration starts (Gauss's method or a stored solution version) and the iteration cap. Checked with the
+// shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
+import { useState, type FormEvent } from 'react';
+import { useNavigate } from 'react-router';
+import { fitSettingsSchema, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm } from '../../../shared/schemas/od';
+import type { SolutionSummary } from '../../../shared/schemas/objects';
+import { fieldErrors } from '../../api/client';
+import { useCreateFit } from '../../api/od';
+import { Button, Card, Notice, SelectField, TextField, errorMessage } from '../../components/ui';
+
+const TERM_LABELS: Record<NonGravTerm, string> = { a1: 'A1 (radial)', a2: 'A2 (transverse)', a3: 'A3 (normal)' };
+
+export function StartFitForm({ objectId, solutions, observationCount }: { objectId: number; solutions: SolutionSummary[]; observationCount: number | null }) {
+  const navigate = useNavigate();
+  const create = useCreateFit(objectId);
+  const [epoch, setEpoch] = useState('');
+  const [terms, setTerms] = useState<NonGravTerm[]>(['a1', 'a2']);
+  const [law, setLaw] = useState<'water-ice' | 'inverse-square'>('water-ice');
+  const [rejectOutliers, setRejectOutliers] = useState(true);
+  const [initial, setInitial] = useState('');
+  const [maxIterations, setMaxIterations] = useState('25');
+  const [local, setLocal] = useState<Record<string, string>>({});
+  const errors = { ...fieldErrors(create.error), ...local };
+
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    const body: FitSettingsInput = {
+      epoch: epoch.trim() === '' ? null : epoch.trim(),
+      nonGravTerms: terms,
+      nonGravLaw: law,
+      rejectOutliers,
+      initialSolutionId: initial === '' ? null : Number(initial),
+      maxIterations: Number(maxIterations),
+    };
+    const parsed = fitSettingsSchema.safeParse(body);
+    if (!parsed.success) {
+      const out: Record<string, string> = {};
+      for (const i of parsed.error.issues) {
+        const k = String(i.path[0] ?? '');
+        if (k && !out[k]) out[k] = k === 'maxIterations' ? 'A whole number from 1 to 100' : i.message;
+      }
+      setLocal(out);
+      return;
+    }
+    setLocal({});
+    create.mutate(parsed.data, { onSuccess: (fit) => navigate(`/fits/${fit.id}`) });
+  };
+
+  return (
+    <Card aria-labelledby="start-fit-heading">
+      <h2 id="start-fit-heading" className="mb-1 text-lg font-semibold">Start an orbit fit</h2>
+      <p className="mb-4 text-sm text-ink-soft">
+        Fits the {observationCount === null ? '' : `${observationCount} `}observations not excluded, first with gravity only, then with the chosen
+        non-gravitational terms, and compares the two.
+      </p>
+      <form onSubmit={submit} noValidate className="grid gap-4 sm:grid-cols-2">
+        <TextField label="Solution epoch" value={epoch} onChange={(e) => setEpoch(e.target.value)} error={errors.epoch} placeholder="middle of the arc" hint="Empty: the middle of the arc at 0h TDB. Or UTC like 2026-06-01T00:00:00Z, TDB:… or JD:…" />
+        <SelectField label="Start from" value={initial} onChange={(e) => setInitial(e.target.value)} error={errors.initialSolutionId} hint="Gauss's method needs no prior orbit">
+          <option value="">Gauss's method (preliminary orbit)</option>
+          {solutions.map((s) => (
+            <option key={s.id} value={s.id}>Solution v{s.version} · epoch {s.epochUtc.slice(0, 10)}</option>
+          ))}
+        </SelectField>
+        <fieldset>
+          <legend className="mb-1 block text-sm font-medium text-ink">Non-gravitational terms of the second fit</legend>
+          <div className="flex flex-wrap gap-x-4 gap-y-1 text-sm">
+            {NONGRAV_TERMS.map((t) => (
+              <label key={t} className="inline-flex items-center gap-2">
+                <input type="checkbox" checked={terms.includes(t)} onChange={() => setTerms((x) => (x.includes(t) ? x.filter((y) => y !== t) : [...x, t].sort()))} />
+                {TERM_LABELS[t]}
+              </label>
+            ))}
+          </div>
+          <p className="mt-1 text-sm text-ink-soft">None ticked: the gravity-only fit alone, no comparison.</p>
+          {errors.nonGravTerms && <p className="mt-1 text-sm font-medium text-danger-700">{errors.nonGravTerms}</p>}
+        </fieldset>
+        <SelectField label="Non-gravitational law" value={law} onChange={(e) => setLaw(e.target.value as typeof law)} error={errors.nonGravLaw} disabled={terms.length === 0}>
+          <option value="water-ice">Water-ice sublimation g(r)</option>
+          <option value="inverse-square">Inverse square of the distance</option>
+        </SelectField>
+        <TextField label="Iterations at most" type="number" min={1} max={100} value={maxIterations} onChange={(e) => setMaxIterations(e.target.value)} error={errors.maxIterations} />
+        <label className="inline-flex items-center gap-2 self-center text-sm">
+          <input type="checkbox" checked={rejectOutliers} onChange={(e) => setRejectOutliers(e.target.checked)} />
+          Reject and recover outliers by the χ² rule
+        </label>
+        <div className="sm:col-span-2">
+          {create.isError && Object.keys(fieldErrors(create.error)).length === 0 && <Notice tone="error" className="mb-3">{errorMessage(create.error)}</Notice>}
+          <Button type="submit" busy={create.isPending} disabled={observationCount === 0}>Queue the fit</Button>
+        </div>
+      </form>
+    </Card>
+  );
+}
