@@ -4,117 +4,28 @@
 // Every change is saved about a second after typing stops with the revision it was made on; a 409 answer stops
 // saving and says who saved in between (nothing typed is dropped: the text stays in the editor).
 import type { Editor } from '@tiptap/react';
-import { useCallback, useEffect, useRef, useState } from 'react';
-import type { BulletinDocument } from '../../../shared/bulletins/document';
+import { useCallback, useRef, useState } from 'react';
 import { MAX_RELEASE_SUMMARY, MAX_RELEASE_TITLE, type Release } from '../../../shared/schemas/releases';
 import { releaseSaveConflict, useSaveRelease } from '../../api/releases';
 import { BulletinEditor } from '../../editor/BulletinEditor';
 import { useFrozenFigureSource } from '../../editor/sources';
-import { Button, errorMessage, Notice, Spinner } from '../../components/ui';
+import { Button, Notice, Spinner } from '../../components/ui';
+import { useAutosave, type SaveStatus } from '../../components/useAutosave';
 import { CopiedFigures } from './ReleaseParts';
 
-export const RELEASE_AUTOSAVE_DELAY_MS = 1000;
-
-type Draft = { title: string; summary: string; document: BulletinDocument };
-export type ReleaseSaveStatus = { kind: 'saved'; revision: number } | { kind: 'dirty' } | { kind: 'saving' } | { kind: 'conflict'; current: Release } | { kind: 'error'; message: string };
+export type ReleaseSaveStatus = SaveStatus<Release>;
 
 export type ReleaseDraftHandle = { flush: () => Promise<boolean> };
 
+/** The shared revisioned-draft autosave on PUT /api/releases/:id; an emptied headline is saved as the last stored one. */
 function useReleaseAutosave(release: Release) {
   const save = useSaveRelease(release.id);
-  const base = useRef(release.revision);
-  const draft = useRef<Draft>({ title: release.title, summary: release.summary, document: release.document });
-  const edits = useRef(0);
-  const savedEdits = useRef(0);
-  const inFlight = useRef<Promise<boolean> | null>(null);
-  const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
-  const stopped = useRef(false);
-  const [status, setStatus] = useState<ReleaseSaveStatus>({ kind: 'saved', revision: release.revision });
-  const mutate = save.mutateAsync;
-  // an emptied headline is saved as the last stored one (a ref: a new title from the server must not re-create run())
-  const storedTitle = useRef(release.title);
-  storedTitle.current = release.title;
-
-  const run = useCallback(async (): Promise<boolean> => {
-    if (stopped.current) return false;
-    if (inFlight.current) await inFlight.current;
-    const sentAt = edits.current;
-    const d = draft.current;
-    setStatus({ kind: 'saving' });
-    const p = (async () => {
-      try {
-        const r = await mutate({ revision: base.current, title: d.title.trim() || storedTitle.current, summary: d.summary, document: d.document });
-        base.current = r.revision;
-        savedEdits.current = sentAt;
-        setStatus(edits.current === sentAt ? { kind: 'saved', revision: r.revision } : { kind: 'dirty' });
-        return edits.current === sentAt;
-      } catch (e) {
-        const current = releaseSaveConflict(e);
-        if (current) {
-          stopped.current = true;
-          setStatus({ kind: 'conflict', current });
-        } else setStatus({ kind: 'error', message: errorMessage(e) });
-        return false;
-      }
-    })();
-    inFlight.current = p;
-    const ok = await p;
-    inFlight.current = null;
-    return ok;
-  }, [mutate]);
-
-  const change = useCallback(
-    (patch: Partial<Draft>) => {
-      draft.current = { ...draft.current, ...patch };
-      edits.current++;
-      if (stopped.current) return;
-      setStatus({ kind: 'dirty' });
-      if (timer.current) clearTimeout(timer.current);
-      timer.current = setTimeout(() => {
-        timer.current = null;
-        void run();
-      }, RELEASE_AUTOSAVE_DELAY_MS);
-    },
-    [run],
-  );
-
-  const flush = useCallback(async (): Promise<boolean> => {
-    if (timer.current) {
-      clearTimeout(timer.current);
-      timer.current = null;
-    }
-    if (stopped.current) return false;
-    if (inFlight.current) await inFlight.current;
-    if (edits.current === savedEdits.current) return true;
-    return run();
-  }, [run]);
-
-  const keepMine = useCallback(
-    (current: Release) => {
-      stopped.current = false;
-      base.current = current.revision;
-      void run();
-    },
-    [run],
-  );
-
-  // leaving the page saves what is pending; closing the tab with unsaved text asks first
-  useEffect(() => {
-    const warn = (e: BeforeUnloadEvent) => {
-      if (edits.current !== savedEdits.current && !stopped.current) e.preventDefault();
-    };
-    window.addEventListener('beforeunload', warn);
-    return () => {
-      window.removeEventListener('beforeunload', warn);
-      if (timer.current) {
-        clearTimeout(timer.current);
-        timer.current = null;
-        void run();
-      }
-    };
-  }, [run]);
-
-  return { status, change, flush, keepMine };
+  return useAutosave(release, {
+    draftOf: (r) => ({ title: r.title, summary: r.summary, document: r.document }),
+    bodyOf: (d, r) => ({ title: d.title.trim() || r.title, summary: d.summary, document: d.document }),
+    save: save.mutateAsync,
+    conflictOf: releaseSaveConflict,
+  });
 }
 
 function SaveState({ status }: { status: ReleaseSaveStatus }) {
