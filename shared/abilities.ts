@@ -21,6 +21,8 @@ export const ACTIONS = [
   'acknowledge',
   // bulletins: take a workflow action (which one, and by whom, is decided by shared/bulletins/workflow.ts)
   'transition',
+  // orbit fits (issue 8): make a finished fit the object's new solution version
+  'adopt',
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
@@ -39,6 +41,9 @@ export const SUBJECTS = [
   'Briefing',
   'Release',
   'Observatory',
+  // orbit determination (issue 8): an object's optical observations, and orbit-fit jobs
+  'Astrometry',
+  'Fit',
 ] as const;
 export type SubjectName = (typeof SUBJECTS)[number];
 
@@ -71,6 +76,8 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   // Tracked objects, orbit solutions and assessment runs (issue 5): the analysis side of the office only;
   // communications staff and liaisons see published summaries, never the raw solutions or runs.
   if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['TrackedObject', 'Solution', 'Run']);
+  // Orbit determination (issue 8): the same analysis side reads observatories, astrometry and fits.
+  if (user.role === 'admin' || user.role === 'analyst' || user.role === 'reviewer') can('read', ['Observatory', 'Astrometry', 'Fit']);
 
   switch (user.role) {
     case 'admin':
@@ -89,7 +96,10 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
       // analyst must be able to stop a colleague's mistaken run).
       can(['create', 'run', 'delete'], 'Run');
       can(['create', 'update', 'transition'], 'Bulletin');
-      can('read', 'Observatory');
+      // Orbit determination (issue 8): uploads astrometry and excludes observations, starts and cancels fits, and
+      // adopts a fit as a new solution version (the observatory table is the administrator's).
+      can(['create', 'update'], 'Astrometry');
+      can(['create', 'delete', 'adopt'], 'Fit');
       break;
     case 'reviewer':
       can(['review', 'approve', 'transition'], 'Bulletin');
@@ -97,7 +107,8 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
       can(['review', 'approve', 'transition'], 'Release');
       // Reviewers re-run an assessment to check it, but do not cancel other people's runs.
       can(['create', 'review'], 'Run');
-      can('read', 'Observatory');
+      // Reviewers may start a fit to check an analyst's (issue 8), but neither cancel nor adopt one.
+      can('create', 'Fit');
       break;
     case 'communications':
       // Press releases (issue 7): write, submit, schedule (publish at a time), reschedule and cancel.

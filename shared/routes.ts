@@ -52,6 +52,21 @@ export const ROUTES = [
   { method: 'GET', path: '/api/runs/:id', action: 'read', subject: 'Run', summary: 'One run: status, progress, provenance, and the engine result when done' },
   { method: 'DELETE', path: '/api/runs/:id', action: 'delete', subject: 'Run', summary: 'Cancel a queued or running run' },
 
+  { method: 'GET', path: '/api/observatories', action: 'read', subject: 'Observatory', summary: 'The office\'s observatory table, with how many observations use each code' },
+  { method: 'POST', path: '/api/observatories', action: 'create', subject: 'Observatory', summary: 'Add an observatory (code, name, longitude, parallax constants or latitude and height; 201)' },
+  { method: 'PUT', path: '/api/observatories/:code', action: 'update', subject: 'Observatory', summary: 'Replace an observatory\'s name and position (the code stays)' },
+  { method: 'DELETE', path: '/api/observatories/:code', action: 'delete', subject: 'Observatory', summary: 'Remove an observatory no observation uses (409 when used)' },
+
+  { method: 'GET', path: '/api/objects/:id/astrometry', action: 'read', subject: 'Astrometry', summary: 'An object\'s uploaded ADES files and its optical observations' },
+  { method: 'POST', path: '/api/objects/:id/astrometry', action: 'create', subject: 'Astrometry', summary: 'Upload ADES PSV (multipart file or {fileName, text}; 422 with every bad line and nothing stored)' },
+  { method: 'PATCH', path: '/api/objects/:id/astrometry/:obsId', action: 'update', subject: 'Astrometry', summary: 'Exclude an observation from fits, or take it back {excluded, reason}' },
+
+  { method: 'GET', path: '/api/objects/:id/fits', action: 'read', subject: 'Fit', summary: 'Orbit fits of an object, newest first (results left out)' },
+  { method: 'POST', path: '/api/objects/:id/fits', action: 'create', subject: 'Fit', summary: 'Queue an orbit fit of the object\'s observations (202 with the job)' },
+  { method: 'GET', path: '/api/fits/:id', action: 'read', subject: 'Fit', summary: 'One fit: status, progress and, when done, both fits and their comparison' },
+  { method: 'DELETE', path: '/api/fits/:id', action: 'delete', subject: 'Fit', summary: 'Cancel a queued or running fit' },
+  { method: 'POST', path: '/api/fits/:id/adopt', action: 'adopt', subject: 'Fit', summary: 'Make one of a finished fit\'s solutions the object\'s new solution version {which, reason} (201, once)' },
+
   { method: 'GET', path: '/api/bulletins', action: 'read', subject: 'Bulletin', summary: 'Bulletins, most recently changed first (?objectId=&state=)' },
   { method: 'POST', path: '/api/bulletins', action: 'create', subject: 'Bulletin', summary: 'Start a bulletin about an object (201 with the draft)' },
   { method: 'GET', path: '/api/bulletins/:id', action: 'read', subject: 'Bulletin', summary: 'The draft with its revision, figures (value, staleness, latest value), allowed actions and history' },

@@ -491,3 +491,137 @@ export const releaseEvents = sqliteTable(
 
 export type ReleaseRow = typeof releases.$inferSelect;
 export type ReleaseVersionRow = typeof releaseVersions.$inferSelect;
+
+// ---------------------------------------------------------------------------------------------------------------
+// Orbit determination (issue 8): the office's observatories, astrometry per object (batches as received and one
+// row per observation) and orbit-fit jobs. METHODS.md §9.
+
+/** The office's observatory table (code = ADES `stn`). Either the parallax constants or latitude and height. */
+export const observatories = sqliteTable('observatories', {
+  code: text('code').primaryKey(),
+  name: text('name').notNull(),
+  /** East longitude, degrees [0, 360). */
+  longitudeDeg: real('longitude_deg').notNull(),
+  rhoCosPhi: real('rho_cos_phi'),
+  rhoSinPhi: real('rho_sin_phi'),
+  geodeticLatitudeDeg: real('geodetic_latitude_deg'),
+  heightM: real('height_m'),
+  createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  updatedAt: integer('updated_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  updatedById: integer('updated_by_id').references(() => users.id, { onDelete: 'set null' }),
+});
+
+/** One uploaded ADES PSV file of an object: the text exactly as received, its SHA-256 and what was kept. */
+export const astrometryBatches = sqliteTable(
+  'astrometry_batches',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    fileName: text('file_name'),
+    rawText: text('raw_text').notNull(),
+    sha256: text('sha256').notNull(),
+    /** Observations stored from this file. */
+    observationCount: integer('observation_count').notNull(),
+    /** Lines skipped because the object already had the same observation (same station and time). */
+    duplicatesSkipped: integer('duplicates_skipped').notNull().default(0),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+  },
+  (t) => [index('astrometry_batches_object_idx').on(t.objectId, t.id)],
+);
+
+/**
+ * Optical observations (shared/schemas/od.ts OpticalObservation), immutable except the analyst's manual exclusion.
+ * `obsKey` is the engine's observationKey (station + instant to the millisecond): unique per object, so the same
+ * observation uploaded twice is stored once.
+ */
+export const observations = sqliteTable(
+  'observations',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    batchId: integer('batch_id')
+      .notNull()
+      .references(() => astrometryBatches.id, { onDelete: 'restrict' }),
+    line: integer('line').notNull(),
+    permId: text('perm_id'),
+    provId: text('prov_id'),
+    trkSub: text('trk_sub'),
+    mode: text('mode').notNull(),
+    stn: text('stn')
+      .notNull()
+      .references(() => observatories.code, { onDelete: 'restrict' }),
+    obsTime: text('obs_time').notNull(),
+    obsTimeTdbDays: real('obs_time_tdb_days').notNull(),
+    raDeg: real('ra_deg').notNull(),
+    decDeg: real('dec_deg').notNull(),
+    rmsRaArcsec: real('rms_ra_arcsec'),
+    rmsDecArcsec: real('rms_dec_arcsec'),
+    rmsCorr: real('rms_corr'),
+    astCat: text('ast_cat'),
+    mag: real('mag'),
+    band: text('band'),
+    remarks: text('remarks'),
+    obsKey: text('obs_key').notNull(),
+    excluded: integer('excluded', { mode: 'boolean' }).notNull().default(false),
+    excludedReason: text('excluded_reason'),
+    excludedById: integer('excluded_by_id').references(() => users.id, { onDelete: 'set null' }),
+    excludedAt: integer('excluded_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [
+    uniqueIndex('observations_object_key_idx').on(t.objectId, t.obsKey),
+    index('observations_object_time_idx').on(t.objectId, t.obsTimeTdbDays),
+    index('observations_batch_idx').on(t.batchId),
+    index('observations_stn_idx').on(t.stn),
+  ],
+);
+
+/**
+ * Orbit-fit jobs: durable like assessment runs (same lease, heartbeat, fencing and recovery, one implementation in
+ * server/services/jobs/leaseRunner.ts). The input is fixed when queued: the ids of the object's non-excluded
+ * observations (`observationIdsJson`, with the SHA-256 of their canonical JSON) and a copy of the observatories
+ * they use (`observatoriesJson`). `settingsJson` is FitSettings, `resultJson` the engine's
+ * OrbitDeterminationResult. `adopted*` record the one adoption of a fit as a solution version.
+ */
+export const orbitFits = sqliteTable(
+  'orbit_fits',
+  {
+    id: integer('id').primaryKey({ autoIncrement: true }),
+    objectId: integer('object_id')
+      .notNull()
+      .references(() => trackedObjects.id, { onDelete: 'restrict' }),
+    settingsJson: text('settings_json').notNull(),
+    observationIdsJson: text('observation_ids_json').notNull(),
+    observationsSha256: text('observations_sha256').notNull(),
+    observationCount: integer('observation_count').notNull(),
+    observatoriesJson: text('observatories_json').notNull(),
+    status: text('status', { enum: RUN_STATUSES }).notNull().default('queued'),
+    progressStage: text('progress_stage'),
+    progressDone: real('progress_done').notNull().default(0),
+    progressTotal: real('progress_total').notNull().default(0),
+    error: text('error'),
+    attempts: integer('attempts').notNull().default(0),
+    leaseOwner: text('lease_owner'),
+    leaseExpiresAt: integer('lease_expires_at', { mode: 'timestamp_ms' }),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
+    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+    resultJson: text('result_json'),
+    adoptedWhich: text('adopted_which', { enum: ['gravity-only', 'non-gravitational'] }),
+    adoptedSolutionId: integer('adopted_solution_id').references(() => orbitSolutions.id, { onDelete: 'restrict' }),
+    adoptedReason: text('adopted_reason'),
+    adoptedById: integer('adopted_by_id').references(() => users.id, { onDelete: 'set null' }),
+    adoptedAt: integer('adopted_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [index('orbit_fits_status_idx').on(t.status, t.id), index('orbit_fits_object_idx').on(t.objectId, t.id)],
+);
+
+export type ObservatoryRow = typeof observatories.$inferSelect;
+export type AstrometryBatchRow = typeof astrometryBatches.$inferSelect;
+export type ObservationRow = typeof observations.$inferSelect;
+export type OrbitFitRow = typeof orbitFits.$inferSelect;

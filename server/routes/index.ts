@@ -4,11 +4,14 @@ import type { Router } from 'express';
 import type { Csrf } from '../middleware/csrf';
 import type { Services } from '../services';
 import { accountRouter } from './account';
+import { astrometryRouter } from './astrometry';
 import { bulletinsRouter } from './bulletins';
 import { distributionsRouter } from './distributions';
+import { fitsRouter } from './fits';
 import { healthRouter } from './health';
 import { invitationsRouter } from './invitations';
 import { objectsRouter } from './objects';
+import { observatoriesRouter } from './observatories';
 import { publicApiRouter } from './public';
 import { releasesRouter } from './releases';
 import { runsRouter } from './runs';
@@ -16,5 +19,5 @@ import { sessionRouter } from './session';
 import { usersRouter } from './users';
 
 export function apiRouters(services: Services, csrf: Csrf): Router[] {
-  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services), bulletinsRouter(services), distributionsRouter(services), releasesRouter(services), publicApiRouter(services)];
+  return [healthRouter(csrf), sessionRouter(services, csrf), accountRouter(services), usersRouter(services), invitationsRouter(services), objectsRouter(services), runsRouter(services), observatoriesRouter(services), astrometryRouter(services), fitsRouter(services), bulletinsRouter(services), distributionsRouter(services), releasesRouter(services), publicApiRouter(services)];
 }

@@ -8,6 +8,9 @@ import { createBulletinService } from './bulletins/service';
 import { createInvitationService } from './invitations';
 import { createMailService } from './mail';
 import { createObjectService } from './objects';
+import { createAstrometryService } from './od/astrometry';
+import { createFitService } from './od/fits';
+import { createObservatoryService } from './od/observatories';
 import { createPublicSite } from './releases/publicSite';
 import { createReleaseScheduler } from './releases/scheduler';
 import { createReleaseService } from './releases/service';
@@ -30,6 +33,10 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const users = createUserService(db, sessionStore, invitations);
   const objects = createObjectService(db);
   const runs = createRunService(db);
+  // Orbit determination (issue 8). The fit runner is started by server/index.ts (tests start it when they need it).
+  const observatories = createObservatoryService(db);
+  const astrometry = createAstrometryService(db);
+  const fits = createFitService(db, { objects, astrometry, observatories });
   const bulletins = createBulletinService(db);
   const distributions = createDistributionService(db, bulletins, mail, config.publicUrl);
   const office = () => officeName(db);
@@ -37,6 +44,6 @@ export function createServices({ db, config, mailTransport }: ServiceDeps) {
   const publicSite = createPublicSite(releases, { publicUrl: config.publicUrl, officeName: office });
   // Not started here: server/index.ts starts it (tests start it when they need it).
   const releaseScheduler = createReleaseScheduler(releases);
-  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs, bulletins, distributions, releases, publicSite, releaseScheduler };
+  return { db, config, sessionStore, mail, invitations, auth, users, objects, runs, observatories, astrometry, fits, bulletins, distributions, releases, publicSite, releaseScheduler };
 }
 export type Services = ReturnType<typeof createServices>;

@@ -141,7 +141,8 @@ export function textOfUpload(buffer: Buffer): string {
 
 export interface SolutionInput {
   text: string;
-  sourceKind: 'opm' | 'json' | 'form';
+  /** 'fit': Tocsin JSON written from an orbit fit (server/services/od/fits.ts adopt). */
+  sourceKind: 'opm' | 'json' | 'form' | 'fit';
   fileName: string | null;
   fit: SolutionFitFields;
 }
@@ -282,12 +283,12 @@ export function createObjectService(db: Db) {
       const object = objectRow(objectId);
       let orbit: NormalizedOrbit;
       try {
-        orbit = input.sourceKind === 'form' ? solutionFromTocsinJson(input.text) : loadOrbitSolution(input.text);
+        orbit = input.sourceKind === 'form' || input.sourceKind === 'fit' ? solutionFromTocsinJson(input.text) : loadOrbitSolution(input.text);
       } catch (err) {
         if (err instanceof OrbitInputError) refused(err.issues);
         throw err;
       }
-      const sourceKind = input.sourceKind === 'form' ? 'form' : orbit.source.format === 'ccsds-opm-kvn' ? 'opm' : 'json';
+      const sourceKind = input.sourceKind === 'form' || input.sourceKind === 'fit' ? input.sourceKind : orbit.source.format === 'ccsds-opm-kvn' ? 'opm' : 'json';
       if (!sameDesignation(orbit.designation, object.designation)) {
         const lines = input.text.split(/\r\n|\r|\n/);
         const opmLine = lines.findIndex((l) => /^\s*OBJECT_ID\s*=/.test(l)) + 1;

@@ -11,6 +11,7 @@ export const ERROR_CODES = [
   'not_found', // 404
   'conflict', // 409: e.g. e-mail already taken
   'unprocessable', // 422: well-formed but not acceptable now (e.g. wrong current password)
+  'INVALID_ASTROMETRY', // 422: an ADES file refused (issue 8): error.issues (and details.issues) list every bad line
   'rate_limited', // 429
   'internal', // 500: never carries a stack trace
 ] as const;

@@ -112,7 +112,8 @@ export type ObjectListResponse = z.infer<typeof objectListResponseSchema>;
 // ------------------------------------------------------------------------------------------------
 // Orbit solutions
 
-export const SOLUTION_SOURCE_KINDS = ['opm', 'json', 'form'] as const;
+/** 'fit': adopted from an orbit fit of the object's astrometry (issue 8; the remark records which fit and why). */
+export const SOLUTION_SOURCE_KINDS = ['opm', 'json', 'form', 'fit'] as const;
 export const solutionSourceKindSchema = z.enum(SOLUTION_SOURCE_KINDS);
 export const FORCE_MODELS = ['gravity-only', 'non-gravitational'] as const;
 export const forceModelSchema = z.enum(FORCE_MODELS);

@@ -83,6 +83,8 @@ export const fitJobSchema = z.object({
   progressTotal: z.number(),
   error: z.string().nullable(),
   observationCount: z.number().int(),
+  /** The stored observations the fit was given, in the order of the engine's input: residual.index -> id. */
+  observationIds: z.array(z.number().int()),
   createdAt: z.string(),
   createdByName: z.string().nullable(),
   startedAt: z.string().nullable(),

@@ -1,8 +1,9 @@
-// Runs one assessment in its own worker thread (assessWorker.ts), outside the server's event loop.
-// The runner (runner.ts) only sees the Executor type, so tests can wrap the real executor to observe it.
+// Engine work in worker threads, outside the server's event loop: runWorkerJob (any engine worker: assessments here,
+// orbit fits in ../od/fitWorker.ts) and workerExecutor, one assessment in assessWorker.ts. The runner (runner.ts) only
+// sees the Executor type, so tests can wrap the real executor to observe it.
 import { Worker } from 'node:worker_threads';
 import type { AssessOptions, OrbitSolution } from '../../engine/assess';
-import type { AssessWorkerData, AssessWorkerMessage } from './assessWorker';
+import type { AssessWorkerData } from './assessWorker';
 
 export interface ExecutorProgress {
   stage: string;
@@ -51,12 +52,27 @@ const WORKER_URL = new URL('./assessWorker.boot.mjs', import.meta.url);
 /** Time the engine gets to stop on its AbortSignal before the thread is terminated. */
 const ABORT_GRACE_MS = 250;
 
-export const workerExecutor: Executor = (job, { onProgress, signal }) =>
-  new Promise<string>((resolve, reject) => {
+/** What every engine worker thread posts (assessWorker.ts, od/fitWorker.ts): progress, then a result or an error. */
+export type WorkerMessage<P> =
+  | ({ type: 'progress' } & P)
+  | { type: 'result'; json: string }
+  | { type: 'error'; name: string; code: string | null; message: string; details: unknown };
+
+/**
+ * Run one engine job in a new worker thread started from `bootUrl` with `workerData`; resolves with the JSON text
+ * the worker posts as its result. Aborting the signal posts {type:'abort'} to the worker (the engine's own
+ * AbortSignal), rejects with EngineAbortedError at once and terminates the thread after a short grace.
+ */
+export function runWorkerJob<P>(
+  bootUrl: URL,
+  workerData: unknown,
+  name: string,
+  { onProgress, signal }: { onProgress(p: Omit<Extract<WorkerMessage<P>, { type: 'progress' }>, 'type'>): void; signal: AbortSignal },
+): Promise<string> {
+  return new Promise<string>((resolve, reject) => {
     if (signal.aborted) return reject(new EngineAbortedError(signal.reason));
-    const data: AssessWorkerData = { orbit: job.orbit, options: job.options };
     // No inherited loader flags: the boot file registers tsx itself (same under `tsx server/index.ts` and vitest).
-    const worker = new Worker(WORKER_URL, { workerData: data, execArgv: [], name: `assess-run-${job.runId}` });
+    const worker = new Worker(bootUrl, { workerData, execArgv: [], name });
     let settled = false;
     const finish = (fn: () => void) => {
       if (settled) return;
@@ -73,12 +89,22 @@ export const workerExecutor: Executor = (job, { onProgress, signal }) =>
       reject(new EngineAbortedError(signal.reason));
     };
     signal.addEventListener('abort', onAbort, { once: true });
-    worker.on('message', (m: AssessWorkerMessage) => {
+    worker.on('message', (m: WorkerMessage<P>) => {
       if (m.type === 'progress') {
-        if (!settled) onProgress({ stage: m.stage, done: m.done, total: m.total, rateClonesPerS: m.rateClonesPerS, etaS: m.etaS });
+        const { type: _type, ...p } = m;
+        if (!settled) onProgress(p);
       } else if (m.type === 'result') finish(() => resolve(m.json));
       else if (m.type === 'error') finish(() => reject(new EngineRunError(m.code ? `${m.code}: ${m.message}` : m.message, m.code, m.details)));
     });
     worker.on('error', (err) => finish(() => reject(new EngineRunError(`the engine worker crashed: ${err.message}`, 'WORKER_CRASHED', null))));
     worker.on('exit', (code) => finish(() => reject(new EngineRunError(`the engine worker stopped unexpectedly (exit code ${code})`, 'WORKER_EXITED', null))));
   });
+}
+
+export const workerExecutor: Executor = (job, { onProgress, signal }) => {
+  const data: AssessWorkerData = { orbit: job.orbit, options: job.options };
+  return runWorkerJob<ExecutorProgress>(WORKER_URL, data, `assess-run-${job.runId}`, {
+    signal,
+    onProgress: (m) => onProgress({ stage: m.stage, done: m.done, total: m.total, rateClonesPerS: m.rateClonesPerS, etaS: m.etaS }),
+  });
+};
