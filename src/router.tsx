@@ -49,11 +49,11 @@ export const router = createBrowserRouter([
               { index: true, element: <ObjectsPage /> },
               { path: ':id', element: <ObjectPage /> },
               { path: ':id/compare', element: <ComparePage /> },
-              // orbit determination (issue 8): the same readers as solutions
+              // orbit determination (issue 8)
               {
                 path: ':id/astrometry',
                 element: (
-                  <RequireAbility action="read" subject="Solution">
+                  <RequireAbility action="read" subject="Astrometry">
                     <AstrometryPage />
                   </RequireAbility>
                 ),
@@ -61,7 +61,7 @@ export const router = createBrowserRouter([
               {
                 path: ':id/fits',
                 element: (
-                  <RequireAbility action="read" subject="Solution">
+                  <RequireAbility action="read" subject="Fit">
                     <ObjectFitsPage />
                   </RequireAbility>
                 ),
@@ -71,7 +71,7 @@ export const router = createBrowserRouter([
           {
             path: 'fits/:id',
             element: (
-              <RequireAbility action="read" subject="Solution">
+              <RequireAbility action="read" subject="Fit">
                 <FitPage />
               </RequireAbility>
             ),

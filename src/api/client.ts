@@ -72,13 +72,7 @@ async function toApiError(res: Response): Promise<ApiError> {
   } catch {
     // Not JSON: fall through to a generic message.
   }
-  if (isErrorBody(body)) {
-    // A refused ADES file lists its line-numbered issues beside the message ({error:{code, message, issues}}):
-    // kept as details.issues when the body has no details of its own.
-    const e = body.error as ApiErrorBody['error'] & { issues?: unknown };
-    const details = e.details ?? (Array.isArray(e.issues) ? { issues: e.issues } : undefined);
-    return new ApiError(res.status, e.code, e.message, details);
-  }
+  if (isErrorBody(body)) return new ApiError(res.status, body.error.code, body.error.message, body.error.details);
   return new ApiError(res.status, 'http_' + res.status, `The server answered ${res.status} ${res.statusText}`.trim());
 }
 

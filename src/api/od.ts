@@ -63,8 +63,8 @@ export function useAstrometry(objectId: number, opts: { enabled?: boolean } = {}
 }
 
 /**
- * The line-numbered issues of a refused ADES file (422 INVALID_ASTROMETRY), wherever the error body carries
- * them (`details.issues` or `details` itself); [] for any other error.
+ * The line-numbered issues of a refused ADES file (422 INVALID_ASTROMETRY carries them in `details.issues`);
+ * [] for any other error.
  */
 export function astrometryIssues(error: unknown): AdesIssue[] {
   if (!(error instanceof ApiError)) return [];

@@ -21,6 +21,7 @@ export type Area = {
  */
 export const AREAS: Area[] = [
   { to: '/objects', label: 'Objects', action: 'read', subject: 'TrackedObject' },
+  { to: '/observatories', label: 'Observatories', action: 'read', subject: 'Observatory' },
   { to: '/bulletins', label: 'Bulletins', action: 'read', subject: 'Bulletin' },
   { to: '/releases', label: 'Releases', action: 'read', subject: 'Release' },
   { to: '/briefings', label: 'Briefings', action: 'read', subject: 'Briefing' },
@@ -44,6 +45,20 @@ export const TASKS: Task[] = [
     description: 'Register an object or add a new solution version (CCSDS OPM, Tocsin JSON or a form), and compare versions.',
     action: 'create',
     subject: 'Solution',
+  },
+  {
+    to: '/objects',
+    title: 'Fit an orbit to astrometry',
+    description: "Add an object's ADES astrometry, fit it with gravity only and with non-gravitational terms, compare the two and adopt one as a new solution version.",
+    action: 'create',
+    subject: 'Solution',
+  },
+  {
+    to: '/observatories',
+    title: 'Keep the observatory table',
+    description: 'Add or correct the sites whose codes astrometry files may name: longitude and parallax constants or geodetic latitude and height.',
+    action: 'create',
+    subject: 'Observatory',
   },
   {
     to: '/bulletins',

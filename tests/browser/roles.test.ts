@@ -24,9 +24,9 @@ import {
 } from './harness';
 
 const EXPECTED_NAV: Record<(typeof DEMO_ROLES)[number], string[]> = {
-  admin: ['Home', 'Objects', 'Bulletins', 'Releases', 'Users', 'Account'],
-  analyst: ['Home', 'Objects', 'Bulletins', 'Releases', 'Account'],
-  reviewer: ['Home', 'Objects', 'Bulletins', 'Releases', 'Account'],
+  admin: ['Home', 'Objects', 'Observatories', 'Bulletins', 'Releases', 'Users', 'Account'],
+  analyst: ['Home', 'Objects', 'Observatories', 'Bulletins', 'Releases', 'Account'],
+  reviewer: ['Home', 'Objects', 'Observatories', 'Bulletins', 'Releases', 'Account'],
   communications: ['Home', 'Bulletins', 'Releases', 'Account'],
   liaison: ['Home', 'Releases', 'Briefings', 'Account'],
 };
@@ -35,6 +35,7 @@ const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
   Home: { path: '/', heading: /^Good to see you, \S+$/ },
   Users: { path: '/admin/users', heading: /^Users$/ },
   Objects: { path: '/objects', heading: /^Objects$/ },
+  Observatories: { path: '/observatories', heading: /^Observatories$/ },
   Bulletins: { path: '/bulletins', heading: /^Bulletins$/ },
   Releases: { path: '/releases', heading: /^Releases$/ },
   Briefings: { path: '/briefings', heading: /^Briefings$/ },

@@ -27,15 +27,19 @@ function downloadJson(fit: FitJob) {
   setTimeout(() => URL.revokeObjectURL(url), 1000);
 }
 
-/** Observations excluded by an analyst now (matched on station and instant), to grey their residuals. */
-function useExcludedLookup(objectId: number | undefined): ((r: Residual) => boolean) | undefined {
-  const astrometry = useAstrometry(objectId ?? 0, { enabled: objectId !== undefined });
+/**
+ * Residuals of observations an analyst has excluded since the fit (greyed in the plots and the table): the fit's
+ * input order maps residual.index to a stored observation id (observationIds).
+ */
+function useExcludedLookup(fit: FitJob | undefined, enabled: boolean): ((r: Residual) => boolean) | undefined {
+  const astrometry = useAstrometry(fit?.objectId ?? 0, { enabled: enabled && fit !== undefined && fit.result !== null });
   return useMemo(() => {
-    if (!objectId || !astrometry.data) return undefined;
-    const keys = new Set(astrometry.data.observations.filter((o) => o.excluded).map((o) => `${o.stn}|${Date.parse(o.obsTime)}`));
-    if (keys.size === 0) return undefined;
-    return (r: Residual) => keys.has(`${r.stn}|${Date.parse(r.obsTime)}`);
-  }, [objectId, astrometry.data]);
+    if (!fit || !astrometry.data) return undefined;
+    const excludedIds = new Set(astrometry.data.observations.filter((o) => o.excluded).map((o) => o.id));
+    if (excludedIds.size === 0) return undefined;
+    const ids = fit.observationIds ?? [];
+    return (r: Residual) => excludedIds.has(ids[r.index] ?? -1);
+  }, [fit, astrometry.data]);
 }
 
 export function FitPage() {
@@ -44,7 +48,7 @@ export function FitPage() {
   const query = useFit(id);
   const cancel = useCancelFit(id);
   const [adopting, setAdopting] = useState(false);
-  const excluded = useExcludedLookup(query.data?.objectId);
+  const excluded = useExcludedLookup(query.data, access.readAstrometry);
   if (query.isPending) return <LoadingState label="Loading the fit…" />;
   if (query.isError) return <ErrorState error={query.error} onRetry={() => void query.refetch()} />;
   const fit = query.data;

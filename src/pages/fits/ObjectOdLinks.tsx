@@ -9,9 +9,9 @@ import { FitStatusBadge } from './FitStatus';
 
 export function ObjectOdLinks({ objectId }: { objectId: number }) {
   const access = odAccess(useAppAbility());
-  const astrometry = useAstrometry(objectId, { enabled: access.read });
-  const fits = useObjectFits(objectId, { enabled: access.read });
-  if (!access.read) return null;
+  const astrometry = useAstrometry(objectId, { enabled: access.readAstrometry });
+  const fits = useObjectFits(objectId, { enabled: access.readFits });
+  if (!access.readAstrometry && !access.readFits) return null;
   const obs = astrometry.data?.observations ?? null;
   const latest = fits.data?.[0] ?? null;
   return (

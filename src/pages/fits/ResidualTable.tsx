@@ -45,7 +45,7 @@ export function ResidualTable({ fits, excluded }: { fits: FitResult[]; excluded?
         </div>
         <div className="flex flex-wrap gap-3">
           {fits.length > 1 && (
-            <SelectField label="Fit" value={which} onChange={(e) => setWhich(e.target.value as FitResult['label'])} className="w-64">
+            <SelectField label="Fit" value={which} onChange={(e) => setWhich(e.target.value as FitResult['label'])} className="w-80">
               {fits.map((f) => <option key={f.label} value={f.label}>{FIT_LABELS[f.label]}</option>)}
             </SelectField>
           )}

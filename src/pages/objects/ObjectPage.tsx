@@ -132,8 +132,8 @@ export function ObjectPage() {
           <VersionsTable objectId={id} solutions={solutions.data} onShow={setShown} />
         )}
         {shown !== null && <SolutionDetail key={shown} objectId={id} version={shown} onClose={() => setShown(null)} />}
-        {solutions.data && <ObjectRuns objectId={id} solutions={solutions.data} />}
         <ObjectOdLinks objectId={id} />
+        {solutions.data && <ObjectRuns objectId={id} solutions={solutions.data} />}
         {ability.can('create', 'Solution') && <UploadSolutionForm objectId={id} onDone={setAdded} />}
       </div>
     </div>
