@@ -9,7 +9,9 @@ import type { Observatory } from '../../shared/schemas/od';
 import { AU_KM, C_AU_D, GM_AU3_D2 } from '../../server/engine/constants';
 import { ChebyshevEphemeris } from '../../server/engine/ephemeris';
 import { EARTH_INDEX, bodyIndex } from '../../server/engine/ephemeris/bodies';
+import { parseAdesPsv } from '../../server/engine/od/ades';
 import { observerStatesAu } from '../../server/engine/od/observer';
+import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
 import { predictAstrometry, type PredictObservation } from '../../server/engine/od/predict';
 import { elementsToState } from '../../server/engine/twobody';
 import { tdbDaysFromJd } from '../../server/engine/time';
@@ -178,5 +180,73 @@ describe('partials versus central differences of predictAstrometry', () => {
     expect(() => predictAstrometry({ epochTdbDays: epoch, positionAu: x0, velocityAuD: v0, nonGrav: null, observations, sensitivities: ['a2'], partials: true, ephemeris: eph })).toThrow(/need nonGrav/);
     expect(() => predictAstrometry({ epochTdbDays: epoch, positionAu: [1, Number.NaN, 0], velocityAuD: v0, nonGrav: null, observations, partials: false, ephemeris: eph })).toThrow(/positionAu/);
     expect(predictAstrometry({ epochTdbDays: epoch, positionAu: x0, velocityAuD: v0, nonGrav: null, observations: [], partials: true })).toEqual([]);
+  });
+});
+
+describe('synthesizeAdesPsv', () => {
+  // Ceres from swetest (as above), observed on 60 nights from two invented sites over 120 days.
+  const jd0 = 2461000.5;
+  const start = (() => {
+    const out = runSwetest([`-j${jd0.toFixed(9)}`, '-pF', '-j2000', '-true', '-hel', '-fxss', '-icrs', '-speed', '-head', '-g,']);
+    const v = out.trim().split(',').map((s) => s.trim()).filter((s) => s.length > 0).map(Number);
+    return { epochTdbDays: tdbDaysFromJd(jd0), positionAu: [v[0], v[1], v[2]] as Vec3, velocityAuD: [v[3], v[4], v[5]] as Vec3, nonGrav: null };
+  })();
+  const nights = Array.from({ length: 60 }, (_, k) => {
+    const day = 1 + 2 * k;
+    const d = new Date(Date.UTC(2025, 10, 20 + day, k % 2 === 0 ? 21 : 3, 7 * (k % 8), (k * 13) % 60, (k * 37) % 1000));
+    return { stn: SITES[k % 2].code, utc: d.toISOString() };
+  });
+
+  it('reads back through parseAdesPsv with the planted noise (sample sigma near the requested 0.4″) and outliers', () => {
+    const arc = synthesizeAdesPsv({ designation: 'HSO-25-T9', orbit: start, observatories: SITES, nights, noiseArcsec: 0.4, seed: 42, outliers: [{ index: 7, offsetArcsec: 6 }, { index: 33, offsetArcsec: 9 }] });
+    const parsed = parseAdesPsv(arc.psv);
+    expect(parsed.issues).toEqual([]);
+    expect(parsed.observations).toHaveLength(60);
+    expect(parsed.header.submitter.name).toMatch(/Halden Sound/);
+    const res: number[] = [];
+    parsed.observations.forEach((o, i) => {
+      expect(o.stn).toBe(nights[i].stn);
+      expect(o.rmsRaArcsec).toBe(0.4);
+      const dRa = Math.atan2(Math.sin((o.raDeg - arc.truth[i].raDeg) * DEG), Math.cos((o.raDeg - arc.truth[i].raDeg) * DEG)) * Math.cos(arc.truth[i].decDeg * DEG) / ARCSEC;
+      const dDec = (o.decDeg - arc.truth[i].decDeg) * 3600;
+      if (i === 7) expect(Math.abs(Math.hypot(dRa, dDec) - 6)).toBeLessThan(2);
+      else if (i === 33) expect(Math.abs(Math.hypot(dRa, dDec) - 9)).toBeLessThan(2);
+      else res.push(dRa, dDec);
+    });
+    // 116 N(0, 0.4²) values: the sample sigma lies within ±20 % with probability > 0.99 (chi-square, 116 dof; computed).
+    const sigma = Math.sqrt(res.reduce((s, x) => s + x * x, 0) / res.length);
+    expect(sigma).toBeGreaterThan(0.32);
+    expect(sigma).toBeLessThan(0.48);
+    // Deterministic per seed; another seed gives other noise.
+    expect(synthesizeAdesPsv({ designation: 'HSO-25-T9', orbit: start, observatories: SITES, nights, noiseArcsec: 0.4, seed: 42, outliers: [{ index: 7, offsetArcsec: 6 }, { index: 33, offsetArcsec: 9 }] }).psv).toBe(arc.psv);
+    expect(synthesizeAdesPsv({ designation: 'HSO-25-T9', orbit: start, observatories: SITES, nights, noiseArcsec: 0.4, seed: 43 }).psv).not.toBe(arc.psv);
+  }, 120_000);
+
+  it('noise-free truth is the topocentric astrometric position swetest gives for Ceres (outside check)', () => {
+    const few = nights.filter((_, k) => k % 15 === 0);
+    const arc = synthesizeAdesPsv({ designation: 'HSO-25-T9', orbit: start, observatories: SITES, nights: few, noiseArcsec: 0, seed: 1 });
+    const parsed = parseAdesPsv(arc.psv);
+    expect(parsed.issues).toEqual([]);
+    let worst = 0;
+    parsed.observations.forEach((o, i) => {
+      expect(o.rmsRaArcsec).toBeNull();
+      const site = SITES.find((s) => s.code === o.stn)!;
+      const ref = swetestSpherical({
+        body: 'ceres', jdTt: jdTtFromTdbDays(o.obsTimeTdbDays), place: 'astrometric',
+        topo: { eastLongitudeDeg: site.longitudeDeg, latitudeDeg: site.geodeticLatitudeDeg!, elevationM: site.heightM! },
+      });
+      worst = Math.max(worst, sepArcsec(o.raDeg * DEG, o.decDeg * DEG, ref.raDeg * DEG, ref.decDeg * DEG));
+      expect(sepArcsec(o.raDeg * DEG, o.decDeg * DEG, arc.truth[i].raDeg * DEG, arc.truth[i].decDeg * DEG)).toBeLessThan(1e-4);
+    });
+    console.log(`synthetic Ceres arc (noise 0) vs swetest: worst ${worst.toFixed(3)}″`);
+    expect(worst).toBeLessThan(0.2);
+  }, 120_000);
+
+  it('refuses bad options with clear messages', () => {
+    const base = { designation: 'HSO-25-T9', orbit: start, observatories: SITES, nights: nights.slice(0, 3), noiseArcsec: 0.3, seed: 1 };
+    expect(() => synthesizeAdesPsv({ ...base, outliers: [{ index: 3, offsetArcsec: 5 }] })).toThrow(/outside 0..2/);
+    expect(() => synthesizeAdesPsv({ ...base, noiseArcsec: -1 })).toThrow(/noiseArcsec/);
+    expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'HSA', utc: '2026-01-01 00:00' }] })).toThrow(/nights\[0\]\.utc/);
+    expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'NOPE', utc: '2026-01-01T00:00:00Z' }] })).toThrow(/Unknown observatory code: NOPE/);
   });
 });
