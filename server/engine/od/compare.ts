@@ -102,7 +102,15 @@ const ELEMENT_LABELS: Record<string, string> = {
   perihelionTimeTdbDays: 'time of perihelion (TDB days)',
 };
 
-const fmt = (x: number, d = 1) => (Math.abs(x) >= 1e4 || (Math.abs(x) < 1e-2 && x !== 0) ? x.toExponential(d) : x.toFixed(d));
+/** Short human number: 12345 -> 1.2e+4, 123.4 -> 123, 12.34 -> 12.3, 0.0477 -> 0.048. */
+const fmt = (x: number) => {
+  const a = Math.abs(x);
+  if (a >= 1e4) return x.toExponential(1);
+  if (a >= 100) return x.toFixed(0);
+  if (a >= 1) return x.toFixed(1);
+  if (a === 0) return '0';
+  return x.toPrecision(2);
+};
 
 /**
  * Compare a gravity-only and a non-gravitational fit of the same observations. plainChi2 holds, for each fit,
