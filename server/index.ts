@@ -13,6 +13,8 @@ import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
 import { seedDemoBulletins } from './services/bulletins/demo';
 import { seedDemoReleases } from './services/releases/demo';
+import { queueDemoFit } from './services/od/demo';
+import { createFitRunner } from './services/od/fitRunner';
 import { queueDemoRuns } from './services/runs/demoRuns';
 import { createRunner } from './services/runs/runner';
 import { ROLE_LABELS } from '../shared/roles';
@@ -64,6 +66,12 @@ async function main(): Promise<void> {
   if (demoRuns.length) console.log(`Demo assessment runs queued: ${demoRuns.map((id) => `#${id}`).join(', ')} (computed in the background).`);
   const runner = createRunner(db, services.runs);
   runner.start();
+  // Orbit fits (issue 8): the demo fit of the visitor's astrometry on the first start, then the fit queue on the same
+  // durable job machinery (server/services/od/fitRunner.ts).
+  const demoFit = queueDemoFit(db, services.fits, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
+  if (demoFit !== null) console.log(`Demo orbit fit queued: #${demoFit} (gravity-only and with A1, A2; computed in the background).`);
+  const fitRunner = createFitRunner(db, services.fits);
+  fitRunner.start();
   // Demo bulletins (one approved and distributed, one in review) are made once the demo runs are done.
   const demoBulletins = setInterval(() => {
     seedDemoBulletins(services, DEMO_OFFICE.emailDomain)
@@ -100,7 +108,7 @@ async function main(): Promise<void> {
     for (const t of timers) clearInterval(t);
     services.releaseScheduler.stop();
     // Running engine work is stopped and its runs go back to the queue; the next start resumes them.
-    await runner.stop();
+    await Promise.all([runner.stop(), fitRunner.stop()]);
     server.closeAllConnections();
     await new Promise<void>((resolve) => server.close(() => resolve()));
     transport.close();

@@ -10,7 +10,7 @@ import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { astrometryBatches, observations, observatories, trackedObjects, users, type ObservationRow } from '../../db/schema';
 import { HttpError, notFound } from '../../errors';
-import { observationKey, parseAdesPsv } from '../../engine/od/ades';
+import { observationKey, parseAdesPsv } from '../../engine/od';
 import type { AdesIssue, OpticalObservation } from '../../../shared/schemas/od';
 import type { AstrometryBatch, AstrometryList, StoredObservation, UploadAstrometryResult } from '../../../shared/schemas/odApi';
 import { sameDesignation } from '../objects';

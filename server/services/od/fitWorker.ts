@@ -7,7 +7,7 @@
 // determineOrbit is synchronous, so an {type:'abort'} message is only seen between engine steps when the engine
 // yields; the runner terminates the thread after a short grace in any case (executor.ts).
 import { parentPort, workerData } from 'node:worker_threads';
-import { determineOrbit, OrbitDeterminationError } from '../../engine/od/fit';
+import { determineOrbit, OrbitDeterminationError } from '../../engine/od';
 import type { FitSettings, Observatory, OpticalObservation } from '../../../shared/schemas/od';
 import type { NormalizedOrbit } from '../../../shared/schemas/orbit';
 import type { WorkerMessage } from '../runs/executor';

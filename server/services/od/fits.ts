@@ -8,7 +8,7 @@ import { alias } from 'drizzle-orm/sqlite-core';
 import type { Db } from '../../db/client';
 import { orbitFits, orbitSolutions, trackedObjects, users, type OrbitFitRow } from '../../db/schema';
 import { conflict, notFound, unprocessable } from '../../errors';
-import { fitToSolutionInput } from '../../engine/od/solutionInput';
+import { fitToSolutionInput } from '../../engine/od';
 import type { FitSettings, Observatory, OpticalObservation, OrbitDeterminationResult } from '../../../shared/schemas/od';
 import type { AdoptFitBody, FitJob } from '../../../shared/schemas/odApi';
 import type { JobEvents } from '../jobs/leaseRunner';
