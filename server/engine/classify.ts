@@ -47,21 +47,61 @@ export function eccentricityOf(r: Vec3, v: Vec3, mu: number): number {
   return Math.hypot(c1 * r[0] - rv * v[0], c1 * r[1] - rv * v[1], c1 * r[2] - rv * v[2]) / mu;
 }
 
-/** ∂e/∂(x, y, z, vx, vy, vz) by central differences. */
-export function eccentricityGradient(r: Vec3, v: Vec3, mu: number): number[] {
-  const hr = 1e-6 * norm(r);
-  const hv = 1e-6 * norm(v);
+/**
+ * Jacobian ∂f/∂(x, y, z, vx, vy, vz) by central differences with steps hr (positions) and hv (velocities): rows the
+ * outputs of f, columns the state. `difference(m, plus, minus)` is the difference used for output m (e.g. an angle
+ * wrapped to (−π, π]); plain subtraction by default. Truncation error O(h²).
+ */
+export function centralDifferenceJacobian(
+  f: (r: Vec3, v: Vec3) => number[],
+  r: Vec3,
+  v: Vec3,
+  hr: number,
+  hv: number,
+  difference: (m: number, plus: number, minus: number) => number = (_m, plus, minus) => plus - minus,
+): number[][] {
   const state = [...r, ...v];
-  return state.map((_, k) => {
+  const columns = state.map((_, k) => {
     const h = k < 3 ? hr : hv;
     const plus = [...state];
     const minus = [...state];
     plus[k] += h;
     minus[k] -= h;
-    const ep = eccentricityOf(plus.slice(0, 3) as Vec3, plus.slice(3) as Vec3, mu);
-    const em = eccentricityOf(minus.slice(0, 3) as Vec3, minus.slice(3) as Vec3, mu);
-    return (ep - em) / (2 * h);
+    const fp = f(plus.slice(0, 3) as Vec3, plus.slice(3) as Vec3);
+    const fm = f(minus.slice(0, 3) as Vec3, minus.slice(3) as Vec3);
+    return fp.map((x, m) => difference(m, x, fm[m]) / (2 * h));
   });
+  return columns[0].map((_, m) => columns.map((c) => c[m]));
+}
+
+/** ∂e/∂(x, y, z, vx, vy, vz) by central differences. */
+export function eccentricityGradient(r: Vec3, v: Vec3, mu: number): number[] {
+  return centralDifferenceJacobian((rr, vv) => [eccentricityOf(rr, vv, mu)], r, v, 1e-6 * norm(r), 1e-6 * norm(v))[0];
+}
+
+/** σ = √(g C gᵀ): linear propagation of the 6×6 state covariance C to a quantity with state gradient g (§3.5). */
+export function propagatedSigma(g: readonly number[], covariance: readonly (readonly number[])[]): number {
+  let s2 = 0;
+  for (let a = 0; a < 6; a++) for (let b = 0; b < 6; b++) s2 += g[a] * covariance[a][b] * g[b];
+  return Math.sqrt(Math.max(0, s2));
+}
+
+/**
+ * The unbound test from e, σ_e and q (METHODS §3.5): S = (e − 1)/σ_e (null without σ_e or with σ_e = 0), bound
+ * when e < 1, heliocentric v∞ = √(μ (e − 1)/q) for e > 1 in km/s (from 1/a = (1 − e)/q, consistent with e).
+ */
+export function unboundTest(
+  e: number,
+  sigma: number | null,
+  q: number,
+  mu: number = GM_AU3_D2.sun,
+): Pick<Classification, 'unboundSignificance' | 'bound' | 'vInfinityKmS'> {
+  const vInfAuD = e > 1 ? Math.sqrt((mu * (e - 1)) / q) : null;
+  return {
+    unboundSignificance: sigma !== null && sigma > 0 ? (e - 1) / sigma : null,
+    bound: e < 1,
+    vInfinityKmS: vInfAuD === null ? null : (vInfAuD * AU_KM) / DAY_S,
+  };
 }
 
 const STATE_ROWS = ['x', 'y', 'z', 'vx', 'vy', 'vz'];
@@ -84,20 +124,20 @@ export function classifyOrbit(input: ClassificationInput): Classification {
   if (cov) {
     const idx = STATE_ROWS.map((n) => cov.parameters.indexOf(n));
     if (idx.some((i) => i < 0)) throw new RangeError(`classifyOrbit: covariance must have rows ${STATE_ROWS.join(', ')}`);
-    const g = eccentricityGradient(r, v, mu);
-    let s2 = 0;
-    for (let a = 0; a < 6; a++) for (let b = 0; b < 6; b++) s2 += g[a] * cov.matrix[idx[a]][idx[b]] * g[b];
-    sigma = Math.sqrt(Math.max(0, s2));
+    sigma = propagatedSigma(
+      eccentricityGradient(r, v, mu),
+      idx.map((i) => idx.map((j) => cov.matrix[i][j])),
+    );
     method += '; σ_e by linear propagation of the covariance with a central-difference gradient of e';
   }
   // v∞ from 1/a = (1 − e)/q, consistent with e (vis-viva gives the same within rounding)
-  const vInfAuD = e > 1 ? Math.sqrt((mu * (e - 1)) / q) : null;
+  const { unboundSignificance, bound, vInfinityKmS } = unboundTest(e, sigma, q, mu);
   return {
     eccentricity: e,
     eccentricitySigma: sigma,
-    unboundSignificance: sigma !== null && sigma > 0 ? (e - 1) / sigma : null,
-    bound: e < 1,
-    vInfinityKmS: vInfAuD === null ? null : (vInfAuD * AU_KM) / DAY_S,
+    unboundSignificance,
+    bound,
+    vInfinityKmS,
     perihelionAu: q,
     inverseSemiMajorAxisPerAu: inverseA,
     method,

@@ -10,12 +10,13 @@
  *     (angle differences wrapped to (−π, π]); truncation error O(h²), far below the σ shown
  *   C_E = J C_s Jᵀ (state block of the covariance), σ_k = √(C_E)kk
  *   Non-gravitational A1..A3 σ are read from the diagonal of the covariance rows a1..a3 (no mapping needed).
- *   Unbound significance S = (e − 1)/σ_e; v∞ = √(GM (e − 1)/q) for e > 1.
+ *   Unbound significance S = (e − 1)/σ_e; v∞ = √(GM (e − 1)/q) for e > 1 (the engine's unboundTest, classify.ts).
  * Angles and their σ are reported in degrees, tp in TDB days since J2000 with σ in days.
  */
 import type { NormalizedOrbit } from '../../shared/schemas/orbit';
 import type { ClassificationSummary } from '../../shared/schemas/objects';
-import { AU_KM, DAY_S, GM_AU3_D2 } from '../engine/constants';
+import { centralDifferenceJacobian, propagatedSigma, unboundTest } from '../engine/classify';
+import { GM_AU3_D2 } from '../engine/constants';
 import { equatorialToEcliptic } from '../engine/frames';
 import { stateToElements } from '../engine/twobody/elements';
 import type { Vec3 } from '../engine/vec';
@@ -55,24 +56,14 @@ function wrapAngle(x: number): number {
 
 /** ∂E/∂s, 6×6, rows ELEMENT_KEYS, columns x..vz (radians for the angles). */
 export function elementJacobian(r: Vec3, v: Vec3, epochTdbDays: number): number[][] {
-  const hr = 1e-7 * Math.hypot(...r);
-  const hv = 1e-7 * Math.hypot(...v);
-  const s = [...r, ...v];
-  const J = ELEMENT_KEYS.map(() => new Array<number>(6).fill(0));
-  for (let k = 0; k < 6; k++) {
-    const h = k < 3 ? hr : hv;
-    const plus = [...s];
-    const minus = [...s];
-    plus[k] += h;
-    minus[k] -= h;
-    const ep = elementVector(plus.slice(0, 3) as Vec3, plus.slice(3) as Vec3, epochTdbDays);
-    const em = elementVector(minus.slice(0, 3) as Vec3, minus.slice(3) as Vec3, epochTdbDays);
-    for (let m = 0; m < 6; m++) {
-      const d = ELEMENT_INFO[ELEMENT_KEYS[m]].angle ? wrapAngle(ep[m] - em[m]) : ep[m] - em[m];
-      J[m][k] = d / (2 * h);
-    }
-  }
-  return J;
+  return centralDifferenceJacobian(
+    (rr, vv) => elementVector(rr, vv, epochTdbDays),
+    r,
+    v,
+    1e-7 * Math.hypot(...r),
+    1e-7 * Math.hypot(...v),
+    (m, plus, minus) => (ELEMENT_INFO[ELEMENT_KEYS[m]].angle ? wrapAngle(plus - minus) : plus - minus),
+  );
 }
 
 /** The 6×6 state block of the covariance, or null when there is none. */
@@ -93,11 +84,7 @@ export function elementsWithSigma(orbit: NormalizedOrbit): Record<ElementKey, El
   let sig: (number | null)[] = values.map(() => null);
   if (C) {
     const J = elementJacobian(r, v, orbit.epochTdbDays);
-    sig = J.map((row) => {
-      let s2 = 0;
-      for (let a = 0; a < 6; a++) for (let b = 0; b < 6; b++) s2 += row[a] * C[a][b] * row[b];
-      return Math.sqrt(Math.max(0, s2));
-    });
+    sig = J.map((row) => propagatedSigma(row, C));
   }
   const out = {} as Record<ElementKey, ElementWithSigma>;
   ELEMENT_KEYS.forEach((key, m) => {
@@ -136,14 +123,14 @@ export function classifySolution(orbit: NormalizedOrbit): ClassificationSummary 
   const e = el.e.value;
   const q = el.q.value;
   const sigma = el.e.sigma;
-  const vInfAuD = e > 1 ? Math.sqrt((GM_AU3_D2.sun * (e - 1)) / q) : null;
+  const { unboundSignificance, bound, vInfinityKmS } = unboundTest(e, sigma, q, GM_AU3_D2.sun);
   return {
     eccentricity: e,
     eccentricitySigma: sigma,
-    unboundSignificance: sigma !== null && sigma > 0 ? (e - 1) / sigma : null,
-    bound: e < 1,
+    unboundSignificance,
+    bound,
     perihelionAu: q,
-    vInfinityKmS: vInfAuD === null ? null : (vInfAuD * AU_KM) / DAY_S,
+    vInfinityKmS,
     method:
       'osculating heliocentric orbit at the epoch (GM_sun); σ_e by linear mapping of the state covariance ' +
       '(central-difference Jacobian); S = (e − 1)/σ_e. An interstellar claim needs the original barycentric orbit.',
