@@ -5,8 +5,8 @@ import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
 import { determineOrbit, FitAbortedError, OrbitDeterminationError } from '../../server/engine/od/fit';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
-import { observerStatesAu } from '../../server/engine/od/observer';
-import { predictAstrometry } from '../../server/engine/od/predict';
+import { parseAdesPsv } from '../../server/engine/od/ades';
+import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
 import { fitToSolutionInput } from '../../server/engine/od/solutionInput';
 import { chiSquareCdf, kolmogorovSmirnov } from '../../server/engine/od/statistics';
 import { RandomStream } from '../../server/engine/risk/random';
@@ -136,29 +136,24 @@ function truthOrbit(nonGrav: Truth['nonGrav'] = null): Truth {
 }
 
 /**
- * Observations of a known orbit computed by the engine (observer.ts + predict.ts, n-body with light time) plus
- * seeded Gaussian noise (risk/random.ts) of `noise` arcsec in RA·cos δ and Dec; `outliers` adds offsets (arcsec,
- * in Dec) to chosen indices.
+ * Observations of a known orbit through the engine: synthesizeAdesPsv (E1's synthetic.ts: observer.ts + predict.ts,
+ * n-body with light time, seeded Gaussian noise of `noise` arcsec, planted outliers of the given size in a random
+ * direction), written as IAU ADES PSV and read back with parseAdesPsv, so the whole input chain is exercised.
  */
 function syntheticArc(truth: Truth, times: number[], noise: number, seed: number, outliers: Record<number, number> = {}): OpticalObservation[] {
-  const items = times.map((t, i) => ({ stn: OBSERVATORIES[i % 2].code, obsTimeTdbDays: t }));
-  const st = observerStatesAu(items, OBSERVATORIES);
-  const pred = predictAstrometry({
-    ...truth,
-    observations: items.map((it, i) => ({ obsTimeTdbDays: it.obsTimeTdbDays, observerPositionAu: st[i].positionAu, observerVelocityAuD: st[i].velocityAuD })),
-    partials: false,
+  const { psv } = synthesizeAdesPsv({
+    designation: 'TEST-1',
+    orbit: truth,
+    observatories: OBSERVATORIES,
+    nights: times.map((t, i) => ({ stn: OBSERVATORIES[i % 2].code, utc: utcFromTdbDays(t).utc })),
+    noiseArcsec: noise,
+    seed,
+    outliers: Object.entries(outliers).map(([i, o]) => ({ index: Number(i), offsetArcsec: o })),
   });
-  const rs = RandomStream.forClone(seed, 0);
-  return pred.map((p, i) => {
-    const dRa = (noise * rs.normal()) / 3600 / Math.cos(p.decRad);
-    const dDec = (noise * rs.normal() + (outliers[i] ?? 0)) / 3600;
-    return {
-      line: i + 1, permID: null, provID: 'TEST-1', trkSub: null, mode: 'CCD', stn: items[i].stn,
-      obsTime: utcFromTdbDays(times[i]).utc, obsTimeTdbDays: times[i],
-      raDeg: ((p.raRad / DEG + dRa) % 360 + 360) % 360, decDeg: p.decRad / DEG + dDec,
-      rmsRaArcsec: noise, rmsDecArcsec: noise, rmsCorr: null, astCat: null, mag: null, band: null, remarks: null,
-    };
-  });
+  const parsed = parseAdesPsv(psv);
+  expect(parsed.issues).toEqual([]);
+  expect(parsed.observations).toHaveLength(times.length);
+  return parsed.observations;
 }
 
 /** nights x perNight observations, 20 min apart, evenly spread over `spanDays` centred on T0. */
@@ -227,9 +222,11 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   it(
     'an arc generated with a real A2 is fitted better with A2: significant Δχ², A2/σ > 3, and the gravity-only residuals show the trend',
     () => {
-      // A2 = 2e-7 AU/d² (water-ice law), a strong but comet-like transverse acceleration; 20 nights x 2 over 90 days.
+      // A2 = 2e-7 AU/d² (water-ice law), a strong but comet-like transverse acceleration; 20 nights x 3 over 120
+      // days, 0.5" noise. (Seeds 3, 4, 5 all pass; 4 is used. With this arc the gravity-only fit rejects ~15 of
+      // the 60 observations its model cannot fit, which the non-grav fit recovers.)
       const truth = truthOrbit({ a1: 0, a2: 2e-7, a3: 0, law: 'water-ice' });
-      const obs = syntheticArc(truth, nightTimes(20, 2, 90), 0.5, 3);
+      const obs = syntheticArc(truth, nightTimes(20, 3, 120), 0.5, 4);
       const r = determineOrbit(
         { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT, nonGravTerms: ['a2'] }) },
         { skipEncounter: true },
@@ -247,6 +244,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       expect(c.residualTrend.gravityOnlySigma).toBeGreaterThan(3);
       expect(c.residualTrend.nonGravSigma).toBeLessThan(c.residualTrend.gravityOnlySigma);
       expect(ng.rmsNormalized).toBeLessThan(r.gravityOnly.rmsNormalized);
+      expect(ng.observationsUsed).toBeGreaterThan(r.gravityOnly.observationsUsed);
       // (element sigmas are not compared here: the gravity-only fit rejected some observations its wrong model
       // cannot fit, so the two fits use different sets; see the encounter test for the same-set comparison)
       expect(c.verdict).toMatch(/non-gravitational fit is favoured/);
@@ -256,7 +254,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
 
   it('rejects injected outliers and recovers the clean observations (METHODS §9.1 rule)', () => {
     const truth = truthOrbit();
-    const injected = { 5: 10, 20: -8, 33: 6 }; // arcsec in Dec: 20, 16, 12 sigma
+    const injected = { 5: 10, 20: 8, 33: 6 }; // arcsec in a random direction: 20, 16, 12 sigma
     const obs = syntheticArc(truth, nightTimes(12, 3, 36), 0.5, 7, injected);
     const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) }, { skipEncounter: true });
     const g = r.gravityOnly;

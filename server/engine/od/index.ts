@@ -7,6 +7,9 @@ export * from './earthOrientation';
 export { observerStatesAu, siteGeocentricAu, UnknownObservatoryError } from './observer';
 export type { ObserverState } from './observer';
 export { predictAstrometry } from './predict';
+export type { PredictObservation, PredictOptions, PredictedAstrometry } from './predict';
+export { synthesizeAdesPsv } from './synthetic';
+export type { SyntheticArcOptions, SyntheticArc } from './synthetic';
 // Fitting
 export { gaussMethod, gaussPolynomialRoots, GaussError, DEGENERATE_D0 } from './gauss';
 export type { GaussObservation, GaussOptions, GaussSolution, GaussResult } from './gauss';
