@@ -1,5 +1,5 @@
-// Demo scenario: an invented regional office, one user per role, and demo objects with orbit solutions
-// (server/db/demo).
+// Demo scenario: an invented regional office, one user per role, demo objects with orbit solutions
+// (server/db/demo), and the office's observatories with the visitor's astrometry (server/services/od/demo.ts).
 // Idempotent: rows that exist are left exactly as they are (a second run changes nothing, and a
 // demo user who changed their password keeps it).
 import path from 'node:path';
@@ -7,6 +7,7 @@ import { fileURLToPath } from 'node:url';
 import { eq } from 'drizzle-orm';
 import type { Role } from '../../shared/roles';
 import { seedDemoStakeholderLists } from '../services/bulletins/demo';
+import { seedDemoAstrometry } from '../services/od/demo';
 import { hashPassword } from '../services/passwords';
 import { OFFICE_NAME_KEY } from '../services/settings';
 import type { Db } from './client';
@@ -52,6 +53,8 @@ export async function seed(db: Db): Promise<{ inserted: number }> {
     inserted += db.insert(users).values({ email: u.email, name: u.name, role: u.role, passwordHash }).onConflictDoNothing().run().changes;
   }
   inserted += seedDemoObjects(db, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
+  // Orbit determination (issue 8): the office's observatories and the visitor's astrometry arc.
+  inserted += seedDemoAstrometry(db, DEMO_USERS.find((u) => u.role === 'analyst')!.email);
   inserted += seedDemoStakeholderLists(db, DEMO_OFFICE.emailDomain);
   return { inserted };
 }
