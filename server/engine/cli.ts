@@ -19,7 +19,14 @@
  *       -> {"object","eccentricity","eccentricitySigma","unboundSignificance","bound","vInfinityKmS","perihelionAu"}
  *   assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance]
  *       -> the Engine II risk assessment of issue 4 item 8 (server/engine/assess/assess.ts)
- *   fit: reserved (orbit fitting later) — currently answers NOT_AVAILABLE.
+ *   fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--progress]
+ *       -> {"object","chosen","solution","fit","gravityOnly","comparison","preliminary","arc","warnings","caution"}
+ *          orbit determination from IAU ADES PSV astrometry (server/engine/od/fit.ts, METHODS §9): "fit" is the chosen
+ *          fit (the non-gravitational one with --nongrav, else gravity-only: state, covariance, RMS, chi-square,
+ *          residuals of every observation, elements with 1-sigma, encounter uncertainty), "solution" the same fit as a
+ *          Tocsin JSON orbit solution (usable as FILE by the other commands), "gravityOnly" the gravity-only fit when
+ *          --nongrav is given (else null) and "comparison" the gravity-only/non-grav comparison (else null).
+ *          Malformed ADES lines and observatory files are INVALID_INPUT with one issue per line/field.
  *   help -> {"commands": {...}, "epochForms": [...]}
  *
  * FILE is a CCSDS OPM 2.0 (KVN) or a Tocsin JSON orbit solution (shared/schemas/orbit.ts).
@@ -67,7 +74,7 @@ const USAGE: Record<string, string> = {
   approaches: 'approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,venus,mars]]',
   classify: 'classify FILE',
   assess: 'assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance] [--max-au 0.05] [--body earth[,...]] [--progress]',
-  fit: 'fit ... (reserved: orbit determination from astrometry, not available yet)',
+  fit: 'fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--progress]',
   help: 'help',
 };
 
@@ -358,9 +365,121 @@ async function cmdAssess(argv: string[]): Promise<unknown> {
   }
 }
 
-/** Reserved: orbit determination from astrometry (METHODS §9), planned later. */
-async function cmdFit(): Promise<unknown> {
-  throw new CliError('NOT_AVAILABLE', 'fit is reserved for orbit determination from astrometry and is not available yet');
+function readText(path: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (err) {
+    throw new CliError('FILE_NOT_READABLE', `cannot read ${path}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
+  }
+}
+
+/**
+ * fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH]
+ *   [--no-outliers] [--max-iterations N] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
+ */
+async function cmdFit(argv: string[]): Promise<unknown> {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: argv,
+      allowPositionals: true,
+      strict: true,
+      options: {
+        observatories: { type: 'string' }, nongrav: { type: 'string' }, epoch: { type: 'string' },
+        'no-outliers': { type: 'boolean' }, 'max-iterations': { type: 'string' }, progress: { type: 'boolean' },
+        law: { type: 'string' },
+      },
+    });
+  } catch (err) {
+    throw usageError((err as Error).message.replace(/\.$/, ''));
+  }
+  const { values, positionals } = parsed;
+  const file = positional(positionals, 'FILE.psv (IAU ADES PSV astrometry)');
+  if (values.observatories === undefined) throw usageError('missing --observatories FILE.json');
+  const terms: ('a1' | 'a2' | 'a3')[] = [];
+  if (values.nongrav !== undefined) {
+    for (const t of values.nongrav.split(',').map((x) => x.trim().toLowerCase())) {
+      if (t !== 'a1' && t !== 'a2' && t !== 'a3') throw usageError(`--nongrav takes a comma list of A1, A2, A3, got ${JSON.stringify(values.nongrav)}`);
+      if (terms.includes(t)) throw usageError(`--nongrav names ${t.toUpperCase()} twice`);
+      terms.push(t);
+    }
+  }
+  const law = (values.law ?? 'water-ice').toLowerCase();
+  if (law !== 'water-ice' && law !== 'inverse-square') throw usageError(`--law must be water-ice or inverse-square, got ${JSON.stringify(values.law)}`);
+  let epoch: string | null = null;
+  if (values.epoch !== undefined) {
+    epochArg('epoch', values.epoch);
+    epoch = values.epoch.trim();
+  }
+  let maxIterations = 25;
+  if (values['max-iterations'] !== undefined) {
+    maxIterations = Number(values['max-iterations']);
+    if (!Number.isInteger(maxIterations) || maxIterations < 1 || maxIterations > 100) {
+      throw usageError(`--max-iterations must be an integer in [1, 100], got ${JSON.stringify(values['max-iterations'])}`);
+    }
+  }
+  const psv = readText(file);
+  const obsText = readText(values.observatories);
+  const od = await needModule('orbit determination (server/engine/od)', () => import('./od'));
+  const { observatoryFileSchema, fitSettingsSchema } = await import('../../shared/schemas/od');
+  const ades = od.parseAdesPsv(psv);
+  if (ades.issues.length > 0) {
+    throw new CliError(
+      'INVALID_INPUT',
+      `${file}: ${ades.issues.length} problem${ades.issues.length === 1 ? '' : 's'} in the ADES file (first: line ${ades.issues[0].line}: ${ades.issues[0].message})`,
+      1,
+      ades.issues.map((i) => ({ where: `line ${i.line}${i.field ? `, field ${i.field}` : ''}`, message: i.message })),
+    );
+  }
+  let json: unknown;
+  try {
+    json = JSON.parse(obsText);
+  } catch (err) {
+    throw new CliError('INVALID_INPUT', `${values.observatories}: not valid JSON (${(err as Error).message})`);
+  }
+  const table = observatoryFileSchema.safeParse(json);
+  if (!table.success) {
+    throw new CliError(
+      'INVALID_INPUT',
+      `${values.observatories}: not a valid observatory file`,
+      1,
+      table.error.issues.map((i) => ({ where: i.path.join('.') || '(file)', message: i.message })),
+    );
+  }
+  const ids = [...new Set(ades.observations.map((o) => o.permID ?? o.provID ?? o.trkSub ?? ''))];
+  if (ids.length > 1) {
+    throw new CliError('INVALID_INPUT', `${file}: observations of ${ids.length} objects (${ids.slice(0, 5).join(', ')}); give one object per file`);
+  }
+  const settings = fitSettingsSchema.parse({ epoch, nonGravTerms: terms, nonGravLaw: law, rejectOutliers: !values['no-outliers'], maxIterations });
+  const onProgress = values.progress ? (p: { stage: string; done: number; total: number }) => process.stderr.write(`${JSON.stringify({ progress: p })}\n`) : undefined;
+  let result;
+  try {
+    result = od.determineOrbit({ observations: ades.observations, observatories: table.data.observatories, settings }, { onProgress });
+  } catch (err) {
+    if (err instanceof od.OrbitDeterminationError) {
+      if (err.code === 'FIT_FAILED') throw new CliError('COMPUTATION_FAILED', err.message);
+      throw new CliError('INVALID_INPUT', `${file}: ${err.message}`);
+    }
+    return compute(() => {
+      throw err;
+    });
+  }
+  const chosen = result.nonGrav ?? result.gravityOnly;
+  let solution: unknown = null;
+  if (chosen.status !== 'failed') solution = od.fitToSolutionInput(chosen, { designation: ids[0] || 'unnamed', notes: `fitted by the engine fit command from ${file}` });
+  return {
+    object: ids[0] || null,
+    chosen: chosen.label,
+    solution,
+    fit: chosen,
+    gravityOnly: result.nonGrav ? result.gravityOnly : null,
+    comparison: result.comparison,
+    preliminary: result.preliminary,
+    arc: result.arc,
+    warnings: result.warnings,
+    engineVersion: result.engineVersion,
+    caution: 'Orbit fits and the figures derived from them are analysis aids; official statements come from the responsible authorities.',
+  };
 }
 
 async function cmdHelp(): Promise<unknown> {

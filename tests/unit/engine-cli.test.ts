@@ -216,9 +216,10 @@ describe('engine CLI: errors are JSON on stderr with a non-zero exit', () => {
   it('UTC before 1972 is out of range (exit 1)', () => {
     expect(fails('pre1972', 'OUT_OF_RANGE', 1).message).toMatch(/before 1972/);
   });
-  it('reserved commands say they are not available (no fake output); assess needs --until', () => {
+  it('assess needs --until; fit needs its astrometry file', () => {
     // assess exists since Engine II (issue 4); without --until it is a usage error
     expect(fails('assess', 'USAGE', 2).message).toMatch(/missing --until/);
-    expect(fails('fit', 'NOT_AVAILABLE', 1).message).toMatch(/not available/);
+    // fit exists since issue 8 (tests/unit/od-cli.test.ts); without a file it is a usage error
+    expect(fails('fit', 'USAGE', 2).message).toMatch(/missing FILE\.psv/);
   });
 });
