@@ -12,7 +12,8 @@ import { EARTH_INDEX, bodyIndex } from '../../server/engine/ephemeris/bodies';
 import { parseAdesPsv } from '../../server/engine/od/ades';
 import { observerStatesAu } from '../../server/engine/od/observer';
 import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
-import { predictAstrometry, type PredictObservation } from '../../server/engine/od/predict';
+import { predictAstrometry, sunBarycentricVelocityAuD, type PredictObservation } from '../../server/engine/od/predict';
+import { propagate } from '../../server/engine/dynamics';
 import { elementsToState } from '../../server/engine/twobody';
 import { tdbDaysFromJd } from '../../server/engine/time';
 import type { NonGravParams, Vec3 } from '../../server/engine/dynamics/types';
@@ -20,6 +21,7 @@ import { jdTtFromTdbDays, runSwetest, swetestSpherical } from '../reference/swet
 
 const ARCSEC = Math.PI / (180 * 3600);
 const DEG = Math.PI / 180;
+const wrapPi = (a: number) => Math.atan2(Math.sin(a), Math.cos(a));
 
 /** Angular separation (arcsec) of two RA/Dec pairs in radians. */
 function sepArcsec(ra1: number, dec1: number, ra2: number, dec2: number): number {
@@ -72,6 +74,42 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
     expect(worst).toBeLessThan(0.2);
   }, 60_000);
 
+  it('Moon as a close body: the light-time displacement (astrometric − geometric, ~20″) equals swetest\'s to 0.01″', () => {
+    // The astrometric place uses the body's position at t − τ seen from the observer at t in barycentric geometry,
+    // so for the Moon (τ ≈ 1.3 s) it moves by the Moon's ~30 km/s barycentric velocity times τ: ~40 km, ~20″.
+    // swetest `-noaberr -nodefl` minus `-true` gives the same displacement independently of its own Moon position; our
+    // Moon ephemeris differs from swetest's by a few km (~1″), so displacements, not positions, are compared.
+    // Geocentric observer (no site nutation question, see od-observer.test.ts). Two-body over τ is exact enough:
+    // the Earth's pull changes the Moon's position by ½ a τ² ≈ 2 mm in 1.3 s (computed).
+    const epochs = [8100.3, 9002.15, 9555.9, 10120.45];
+    const eph = ChebyshevEphemeris.build(Math.min(...epochs) - 2, Math.max(...epochs) + 2);
+    const moon = new Float64Array(6), earth = new Float64Array(6);
+    let worst = 0, smallest = Infinity;
+    for (const t of epochs) {
+      eph.stateInto(bodyIndex('moon'), t, moon);
+      eph.stateInto(EARTH_INDEX, t, earth);
+      const [p] = predictAstrometry({
+        epochTdbDays: t, positionAu: [moon[0], moon[1], moon[2]], velocityAuD: [moon[3], moon[4], moon[5]], nonGrav: null,
+        model: 'two-body', partials: false, ephemeris: eph,
+        observations: [{ obsTimeTdbDays: t, observerPositionAu: [earth[0], earth[1], earth[2]], observerVelocityAuD: [earth[3], earth[4], earth[5]] }],
+      });
+      const g = [moon[0] - earth[0], moon[1] - earth[1], moon[2] - earth[2]];
+      const gRa = Math.atan2(g[1], g[0]), gDec = Math.asin(g[2] / Math.hypot(g[0], g[1], g[2]));
+      const ours = [wrapPi(p.raRad - gRa) * Math.cos(gDec) / ARCSEC, (p.decRad - gDec) / ARCSEC];
+      const jdTt = jdTtFromTdbDays(t);
+      const a = swetestSpherical({ body: 'moon', jdTt, place: 'astrometric' });
+      const b = swetestSpherical({ body: 'moon', jdTt, place: 'geometric' });
+      const theirs = [wrapPi((a.raDeg - b.raDeg) * DEG) * Math.cos(b.decDeg * DEG) / ARCSEC, (a.decDeg - b.decDeg) * 3600];
+      smallest = Math.min(smallest, Math.hypot(theirs[0], theirs[1]));
+      worst = Math.max(worst, Math.hypot(ours[0] - theirs[0], ours[1] - theirs[1]));
+    }
+    console.log(`Moon light-time displacement vs swetest: worst difference ${worst.toFixed(4)}″ (displacement at least ${smallest.toFixed(1)}″)`);
+    expect(smallest).toBeGreaterThan(5);
+    // Measured 0.001″; 0.004″ would still catch a missing solar barycentric velocity term (~13 m/s × 1.3 s = 17 m,
+    // 0.009″ at the Moon, computed).
+    expect(worst).toBeLessThan(0.004);
+  }, 60_000);
+
   it('Ceres: swetest state, n-body over 100–300 days, topocentric astrometric RA/Dec versus swetest', () => {
     // Start: swetest heliocentric geometric ICRS state of Ceres (9 decimals: 0.15 km, 1.7 mm/s). Our n-body model has
     // no asteroid perturbers and a VSOP87-level planet ephemeris, so arcsecond-level drift over months is expected.
@@ -107,6 +145,42 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
     });
     console.log(`Ceres topocentric astrometric vs swetest: ${errs.join(', ')}`);
     expect(worst).toBeLessThan(5);
+  }, 120_000);
+});
+
+describe('light time close to the Earth', () => {
+  it('a body passing 0.003 AU from the Earth: Taylor light time equals an explicit propagation to t − τ (1e-4″)', () => {
+    // Independent route (common practice, no source): for each observation, iterate τ with a full n-body propagation
+    // from the epoch to t − τ_k (propagate(), dense output at the end) instead of predict.ts's expansion from t.
+    const T = 10500;
+    const eph = ChebyshevEphemeris.build(T - 5, T + 5);
+    const e = new Float64Array(6);
+    eph.stateInto(EARTH_INDEX, T, e);
+    const kmsToAud = 86400 / AU_KM;
+    const x0: Vec3 = [e[0] + 0.002, e[1] - 0.002, e[2] + 0.001];
+    const v0: Vec3 = [e[3] - 6 * kmsToAud, e[4] + 7 * kmsToAud, e[5] - 3 * kmsToAud];
+    const times = [T - 2, T - 0.5, T, T + 0.3, T + 1.5];
+    const items = times.map((t, i) => ({ stn: SITES[i % 2].code, obsTimeTdbDays: t }));
+    const st = observerStatesAu(items, SITES, eph);
+    const observations = items.map((it, i) => ({ obsTimeTdbDays: it.obsTimeTdbDays, observerPositionAu: st[i].positionAu, observerVelocityAuD: st[i].velocityAuD }));
+    const preds = predictAstrometry({ epochTdbDays: T, positionAu: x0, velocityAuD: v0, nonGrav: null, observations, partials: true, ephemeris: eph, tolerance: 1e-11 });
+    let worst = 0;
+    observations.forEach((o, i) => {
+      const vSun = sunBarycentricVelocityAuD(eph, o.obsTimeTdbDays);
+      let tau = 0;
+      let rho: number[] = [0, 0, 0];
+      for (let k = 0; k < 6; k++) {
+        const r = propagate({ positionAu: x0, velocityAuD: v0, fromTdbDays: T, toTdbDays: o.obsTimeTdbDays - tau, model: 'n-body', ephemeris: eph, impactBodies: [], tolerance: 1e-11 });
+        rho = [0, 1, 2].map((c) => r.positionAu[c] - o.observerPositionAu[c] - vSun[c] * tau);
+        tau = Math.hypot(rho[0], rho[1], rho[2]) / C_AU_D;
+      }
+      const ra = Math.atan2(rho[1], rho[0]), dec = Math.asin(rho[2] / Math.hypot(rho[0], rho[1], rho[2]));
+      worst = Math.max(worst, sepArcsec(preds[i].raRad, preds[i].decRad, ra, dec));
+      expect(preds[i].lightTimeDays).toBeCloseTo(tau, 12);
+    });
+    console.log(`close approach: predict.ts vs explicit light-time propagation worst ${worst.toExponential(2)}″; ranges ${preds.map((p) => p.rangeAu.toFixed(4)).join(', ')} AU`);
+    expect(Math.min(...preds.map((p) => p.rangeAu))).toBeLessThan(0.005);
+    expect(worst).toBeLessThan(1e-4);
   }, 120_000);
 });
 

@@ -19,6 +19,8 @@
  *    With ρ = r(t − τ) − R' and τ = |ρ|/c: dρ/dp = Φ_r − u (ρ̂ᵀ dρ/dp)/c, u = v_body + v_⊙, so
  *    ρ̂ᵀ dρ/dp = ρ̂ᵀΦ_r / (1 + ρ̂·u/c) and dρ/dp = Φ_r − u (ρ̂ᵀΦ_r) / (c + ρ̂·u) (light-time partial included).
  *    cos δ ∂α/∂ρ = (−sin α, cos α, 0)/|ρ|, ∂δ/∂ρ = (−sin δ cos α, −sin δ sin α, cos δ)/|ρ|.
+ * The observer velocity is part of the input for completeness; the astrometric model above does not use it (it
+ * would enter through stellar aberration, which catalogue-relative astrometry does not have).
  */
 import { C_AU_D, GM_AU3_D2 } from '../constants';
 import { defaultEphemeris } from '../dynamics/ephemeris-source';
