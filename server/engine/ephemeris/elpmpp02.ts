@@ -14,6 +14,7 @@
  * is neglected; it is six orders below the velocity accuracy of the theory.
  */
 import elp from 'astronomia/data/elpMppDe';
+import { combineSegments, flattenSeries, nodeRotationTable, seriesTermCount, type SeriesSegments } from './chunk';
 
 const DAYS_PER_CENTURY = 36_525;
 const ARCSEC_RAD = Math.PI / (180 * 3600);
@@ -188,35 +189,22 @@ function positionFromSumsKm(T: number, sumL: number, sumB: number, R: number, ou
 }
 
 /** All terms flattened: A, φ0..φ4 per term; segments per (variable L/B/R, power of T). */
-type FlatElp = { A: Float64Array; F: Float64Array /* 5 per term */; segStart: Int32Array; segVar: Int8Array; segPow: Int8Array };
+type FlatElp = SeriesSegments & { A: Float64Array; F: Float64Array /* 5 per term */ };
 let FLAT: FlatElp | null = null;
 
 function flatElp(): FlatElp {
   if (FLAT) return FLAT;
   const p = packed();
-  const segs: { v: number; a: number; arr: Float64Array }[] = [];
-  [p.L, p.B, p.R].forEach((vv, v) => vv.forEach((arr, a) => segs.push({ v, a, arr })));
-  const total = segs.reduce((s, x) => s + x.arr.length / 6, 0);
-  const f: FlatElp = {
-    A: new Float64Array(total),
-    F: new Float64Array(total * 5),
-    segStart: new Int32Array(segs.length + 1),
-    segVar: new Int8Array(segs.length),
-    segPow: new Int8Array(segs.length),
-  };
-  let i = 0;
-  segs.forEach((sg, s) => {
-    f.segStart[s] = i;
-    f.segVar[s] = sg.v;
-    f.segPow[s] = sg.a;
-    for (let j = 0; j < sg.arr.length; j += 6, i++) {
-      f.A[i] = sg.arr[j];
-      for (let q = 0; q < 5; q++) f.F[5 * i + q] = sg.arr[j + 1 + q];
-    }
+  const variables = [p.L, p.B, p.R];
+  const total = seriesTermCount(variables, 6);
+  const A = new Float64Array(total);
+  const F = new Float64Array(total * 5);
+  const seg = flattenSeries(variables, 6, (i, arr, j) => {
+    A[i] = arr[j];
+    for (let q = 0; q < 5; q++) F[5 * i + q] = arr[j + 1 + q];
   });
-  f.segStart[segs.length] = i;
-  FLAT = f;
-  return f;
+  FLAT = { A, F, ...seg };
+  return FLAT;
 }
 
 /** Number of (variable, power) segments of the flattened series (scratch sizing). */
@@ -257,15 +245,7 @@ export function elpChunkPositionsKmInto(
   const nTerms = f.A.length;
   let node = NODE_TABLES.get(key);
   if (!node) {
-    node = new Float64Array(nTerms * 2 * n);
-    for (let i = 0; i < nTerms; i++) {
-      const f1 = f.F[5 * i + 1];
-      for (let k = 0; k < n; k++) {
-        const x = (f1 * offsetsDays[k]) / DAYS_PER_CENTURY;
-        node[2 * n * i + k] = Math.cos(x);
-        node[2 * n * i + n + k] = Math.sin(x);
-      }
-    }
+    node = nodeRotationTable(nTerms, (i) => f.F[5 * i + 1], offsetsDays, DAYS_PER_CENTURY);
     NODE_TABLES.set(key, node);
   }
   const nSeg = f.segVar.length;
@@ -318,20 +298,5 @@ export function elpChunkPositionsKmInto(
       }
     }
   }
-  for (let g = 0; g < K; g++) {
-    for (let k = 0; k < n; k++) {
-      const T = (centre0Days + g * stepDays + offsetsDays[k]) / DAYS_PER_CENTURY;
-      let L = 0;
-      let B = 0;
-      let R = 0;
-      for (let s = 0; s < nSeg; s++) {
-        const v = acc[s * Kn + g * n + k] * Math.pow(T, f.segPow[s]);
-        const w = f.segVar[s];
-        if (w === 0) L += v;
-        else if (w === 1) B += v;
-        else R += v;
-      }
-      positionFromSumsKm(T, L, B, R, out, 3 * (g * n + k));
-    }
-  }
+  combineSegments(f, acc, centre0Days, stepDays, K, offsetsDays, DAYS_PER_CENTURY, (T, L, B, R, o) => positionFromSumsKm(T, L, B, R, out, o));
 }

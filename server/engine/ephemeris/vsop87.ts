@@ -15,6 +15,7 @@ import jupiter from 'astronomia/data/vsop87Bjupiter';
 import saturn from 'astronomia/data/vsop87Bsaturn';
 import uranus from 'astronomia/data/vsop87Buranus';
 import neptune from 'astronomia/data/vsop87Bneptune';
+import { combineSegments, flattenSeries, nodeRotationTable, seriesTermCount, type SeriesSegments } from './chunk';
 
 export type Vsop87Planet = 'mercury' | 'venus' | 'earth' | 'mars' | 'jupiter' | 'saturn' | 'uranus' | 'neptune';
 
@@ -228,36 +229,24 @@ export function vsop87SampleInto(planet: Vsop87Planet, tdbCenter: number, offset
  * and every chunk is reseeded), and moved to each node by a second rotation through C·dτ_k taken from a
  * per-term table. So the trigonometric cost is 2 calls per term per chunk instead of one per term and node.
  */
-type FlatSeries = { A: Float64Array; Ph: Float64Array; C: Float64Array; segStart: Int32Array; segVar: Int8Array; segPow: Int8Array };
+type FlatSeries = SeriesSegments & { A: Float64Array; Ph: Float64Array; C: Float64Array };
 const FLAT = new Map<Vsop87Planet, FlatSeries>();
 
 function flat(planet: Vsop87Planet): FlatSeries {
   let f = FLAT.get(planet);
   if (f) return f;
   const p = packed(planet);
-  const segs: { v: number; a: number; arr: Float64Array }[] = [];
-  [p.L, p.B, p.R].forEach((vv, v) => vv.forEach((arr, a) => segs.push({ v, a, arr })));
-  const total = segs.reduce((s, x) => s + x.arr.length / 3, 0);
-  f = {
-    A: new Float64Array(total),
-    Ph: new Float64Array(total),
-    C: new Float64Array(total),
-    segStart: new Int32Array(segs.length + 1),
-    segVar: new Int8Array(segs.length),
-    segPow: new Int8Array(segs.length),
-  };
-  let i = 0;
-  segs.forEach((sg, s) => {
-    f!.segStart[s] = i;
-    f!.segVar[s] = sg.v;
-    f!.segPow[s] = sg.a;
-    for (let j = 0; j < sg.arr.length; j += 3, i++) {
-      f!.A[i] = sg.arr[j];
-      f!.Ph[i] = sg.arr[j + 1];
-      f!.C[i] = sg.arr[j + 2];
-    }
+  const variables = [p.L, p.B, p.R];
+  const total = seriesTermCount(variables, 3);
+  const A = new Float64Array(total);
+  const Ph = new Float64Array(total);
+  const C = new Float64Array(total);
+  const seg = flattenSeries(variables, 3, (i, arr, j) => {
+    A[i] = arr[j];
+    Ph[i] = arr[j + 1];
+    C[i] = arr[j + 2];
   });
-  f.segStart[segs.length] = i;
+  f = { A, Ph, C, ...seg };
   FLAT.set(planet, f);
   return f;
 }
@@ -286,16 +275,10 @@ export function vsop87ChunkPositionsInto(
   const tk = `${planet}|${key}|${stepDays}`;
   let tab = CHUNK_TABLES.get(tk);
   if (!tab) {
-    const node = new Float64Array(nTerms * 2 * n);
+    const node = nodeRotationTable(nTerms, (i) => f.C[i], offsetsDays, DAYS_PER_MILLENNIUM);
     const step = new Float64Array(nTerms * 2);
     for (let i = 0; i < nTerms; i++) {
-      const c = f.C[i];
-      for (let k = 0; k < n; k++) {
-        const x = (c * offsetsDays[k]) / DAYS_PER_MILLENNIUM;
-        node[2 * n * i + k] = Math.cos(x);
-        node[2 * n * i + n + k] = Math.sin(x);
-      }
-      const d = (c * stepDays) / DAYS_PER_MILLENNIUM;
+      const d = (f.C[i] * stepDays) / DAYS_PER_MILLENNIUM;
       step[2 * i] = Math.cos(d);
       step[2 * i + 1] = Math.sin(d);
     }
@@ -326,26 +309,12 @@ export function vsop87ChunkPositionsInto(
       }
     }
   }
-  for (let g = 0; g < K; g++) {
-    for (let k = 0; k < n; k++) {
-      const tau = (centre0Days + g * stepDays + offsetsDays[k]) / DAYS_PER_MILLENNIUM;
-      let L = 0;
-      let B = 0;
-      let R = 0;
-      for (let s = 0; s < nSeg; s++) {
-        const v = acc[s * Kn + g * n + k] * Math.pow(tau, f.segPow[s]);
-        const w = f.segVar[s];
-        if (w === 0) L += v;
-        else if (w === 1) B += v;
-        else R += v;
-      }
-      const cB = Math.cos(B);
-      const o = 3 * (g * n + k);
-      out[o] = R * cB * Math.cos(L);
-      out[o + 1] = R * cB * Math.sin(L);
-      out[o + 2] = R * Math.sin(B);
-    }
-  }
+  combineSegments(f, acc, centre0Days, stepDays, K, offsetsDays, DAYS_PER_MILLENNIUM, (_tau, L, B, R, o) => {
+    const cB = Math.cos(B);
+    out[o] = R * cB * Math.cos(L);
+    out[o + 1] = R * cB * Math.sin(L);
+    out[o + 2] = R * Math.sin(B);
+  });
 }
 
 /** Number of (variable, power) segments of a planet's flattened series (scratch sizing). */
