@@ -72,7 +72,9 @@ function VersionsTable({ objectId, solutions, onShow }: { objectId: number; solu
                   <td className="px-3 py-2">{s.sourceKind.toUpperCase()}{s.fileName ? ` · ${s.fileName}` : ''}</td>
                   <td className="px-3 py-2">{formatUtc(s.epochUtc)}</td>
                   <td className="px-3 py-2">
-                    {s.observationArcDays ?? '—'} d · {s.observationCount ?? '—'} · {s.fitRmsArcsec ?? '—'}″
+                    {/* rounded for display: a version adopted from a fit carries the full-precision arc and RMS */}
+                    {s.observationArcDays === null ? '—' : Number(s.observationArcDays.toFixed(2))} d · {s.observationCount ?? '—'} ·{' '}
+                    {s.fitRmsArcsec === null ? '—' : Number(s.fitRmsArcsec.toPrecision(3))}″
                   </td>
                   <td className="px-3 py-2">{s.forceModel === 'gravity-only' ? 'Gravity only' : `With ${s.nonGravTerms.join(', ')}`}</td>
                   <td className="px-3 py-2">
