@@ -165,6 +165,9 @@ describe('parseAdesPsv: every malformed line gives its line and field', () => {
     expect(parseAdesPsv('# version=2022\n# observatory\n! mpcCode HSA\n').issues).toEqual([
       { line: 0, field: null, message: expect.stringMatching(/No column-header line/) },
     ]);
+    expect(parseAdesPsv('# version=2022\nprovID|mode|stn|obsTime|ra|dec\nX|CCD|HSA|2026-03-01T03:12:45Z|1|2\n# observatory\n! mpcCode HSB\n').issues).toEqual([
+      { line: 4, field: null, message: expect.stringMatching(/end of the file with no column header/) },
+    ]);
     expect(parseAdesPsv('# version=2022\nprovID|mode|stn|obsTime|ra|dec\n').issues).toEqual([
       { line: 0, field: null, message: 'No observations in the file' },
     ]);

@@ -254,6 +254,7 @@ describe('partials versus central differences of predictAstrometry', () => {
     expect(() => predictAstrometry({ epochTdbDays: epoch, positionAu: x0, velocityAuD: v0, nonGrav: null, observations, sensitivities: ['a2'], partials: true, ephemeris: eph })).toThrow(/need nonGrav/);
     expect(() => predictAstrometry({ epochTdbDays: epoch, positionAu: [1, Number.NaN, 0], velocityAuD: v0, nonGrav: null, observations, partials: false, ephemeris: eph })).toThrow(/positionAu/);
     expect(predictAstrometry({ epochTdbDays: epoch, positionAu: x0, velocityAuD: v0, nonGrav: null, observations: [], partials: true })).toEqual([]);
+    expect(() => predictAstrometry({ epochTdbDays: epoch, positionAu: x0, velocityAuD: v0, nonGrav: null, observations, partials: false, ephemeris: ChebyshevEphemeris.build(epoch - 10, epoch + 10) })).toThrow(/ephemeris covers/);
   });
 });
 

@@ -145,6 +145,8 @@ export function parseAdesPsv(text: string): AdesParseResult {
   /** True while reading header lines (a column-header line is expected next). */
   let inHeader = true;
   let skippedBlockReported = false;
+  let lastGroupLine = 0;
+  let sawData = false;
   /** key -> first line with it, for duplicates inside the file. */
   const seen = new Map<string, number>();
 
@@ -184,6 +186,7 @@ export function parseAdesPsv(text: string): AdesParseResult {
       }
       group = name;
       header[group] ??= {};
+      lastGroupLine = lineNo;
       continue;
     }
 
@@ -217,6 +220,7 @@ export function parseAdesPsv(text: string): AdesParseResult {
       continue;
     }
 
+    sawData = true;
     const obs = readDataLine(line, lineNo, block, issue);
     if (!obs) continue;
     const key = observationKey(obs);
@@ -235,7 +239,9 @@ export function parseAdesPsv(text: string): AdesParseResult {
 
   if (!sawContent) issue(0, null, 'The file is empty');
   else if (!sawVersion && issues.every((x) => x.field !== 'version')) issue(0, 'version', 'Missing "# version=2022" line');
-  else if (block === null) issue(0, null, 'No column-header line and no data lines after the header');
+  else if (block === null && lastGroupLine > 0 && sawData) {
+    issue(lastGroupLine, null, 'Header group at the end of the file with no column header or data lines after it');
+  } else if (block === null) issue(0, null, 'No column-header line and no data lines after the header');
   else if (block.usable && observations.length === 0 && issues.length === 0) issue(0, null, 'No observations in the file');
 
   issues.sort((a, b) => a.line - b.line);

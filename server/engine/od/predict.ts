@@ -113,6 +113,11 @@ export function predictAstrometry(opts: PredictOptions): PredictedAstrometry[] {
   const hi = Math.max(epoch, ...times);
   // The ephemeris also serves the Sun's barycentric velocity (both models) and the n-body acceleration.
   const eph = opts.ephemeris ?? defaultEphemeris(lo - 0.1, hi + 0.1);
+  if (lo - 0.05 < eph.startTdbDays || hi + 0.05 > eph.endTdbDays) {
+    throw new RangeError(
+      `the ephemeris covers [${eph.startTdbDays}, ${eph.endTdbDays}] TDB days but the epoch and observations need [${lo}, ${hi}] (plus light time)`,
+    );
+  }
   const nonGrav = model === 'n-body' ? opts.nonGrav : null;
   const cols = 6 + sens.length;
 
