@@ -207,6 +207,28 @@ describe('a fit computed by the real engine', () => {
   });
 });
 
+describe('a fit the engine refuses', () => {
+  it('ends failed with the engine\'s reason (observations from one night only), and cannot be adopted', async () => {
+    runner ??= startRunner();
+    const comet = srv.db.select().from(trackedObjects).where(eq(trackedObjects.designation, 'HSO-23-C2')).get()!;
+    // four positions within 2 h from one station: no second night (METHODS.md §9.3 needs well-spaced observations)
+    const text = [
+      '# version=2022',
+      'provID|mode|stn|obsTime|ra|dec',
+      ...[0, 30, 60, 90].map((m, i) => `HSO-23-C2|CCD|TQN|2026-11-10T2${Math.floor(m / 60)}:${String(m % 60).padStart(2, '0')}:00.000Z|${(40 + i * 0.01).toFixed(6)}|12.000000`),
+    ].join('\n');
+    expect((await as.analyst.request('POST', `/api/objects/${comet.id}/astrometry`, { body: { text } })).status).toBe(201);
+    const res = await as.analyst.request('POST', `/api/objects/${comet.id}/fits`, { body: {} });
+    expect(res.status, JSON.stringify(res.body)).toBe(202);
+    const failed = await pollFit(res.body.id, (f) => f.status === 'done' || f.status === 'failed');
+    expect(failed.status).toBe('failed');
+    expect(failed.error).toMatch(/TOO_FEW_OBSERVATIONS: .*one night/);
+    expect(failed.result).toBeNull();
+    expect((await as.analyst.request('POST', `/api/fits/${failed.id}/adopt`, { body: { which: 'gravity-only', reason: 'should not work' } })).status).toBe(409);
+    expect((await as.analyst.get('/api/fits/999999')).status).toBe(404);
+  }, 120_000);
+});
+
 describe('cancel and recovery', () => {
   it('DELETE cancels a running fit: the worker stops, nothing is stored, a second DELETE is 409', async () => {
     runner ??= startRunner();
