@@ -344,6 +344,15 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       expect(back.covariance!.parameters).toEqual(['x', 'y', 'z', 'vx', 'vy', 'vz', 'a2']);
       expect(back.nonGrav!.a2).toBe(r.nonGrav!.nonGrav!.a2);
       expect(back.hMagnitude).toBe(20.5);
+      // starting from an existing solution instead of Gauss converges to the same orbit
+      const again = determineOrbit(
+        { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }), initialOrbit: back },
+        { skipEncounter: true },
+      );
+      expect(again.preliminary!.method).toBe('initial-solution');
+      expect(again.gravityOnly.status).toBe('converged');
+      const sigmaX = Math.sqrt(r.gravityOnly.covariance![0][0]);
+      expect(Math.abs(again.gravityOnly.positionAu[0] - r.gravityOnly.positionAu[0])).toBeLessThan(0.01 * sigmaX);
     },
     120_000,
   );

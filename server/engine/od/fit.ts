@@ -19,7 +19,8 @@
  * the nights of the arc (observations closer than NIGHT_GAP_DAYS belong to one night): the first, middle and last
  * night of the whole arc and of shorter sub-arcs, each night represented by its middle observation. Every admissible
  * root of every triple is scored by the median chi_i² of all observations under two-body motion with light time;
- * the best one starts the differential correction. A triple whose Gauss step fails (degenerate, no root) is skipped.
+ * the best one starts the differential correction, and when that fit does not converge the next distinct candidates
+ * (up to MAX_START_CANDIDATES) are tried. A triple whose Gauss step fails (degenerate, no root) is skipped.
  */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
@@ -108,6 +109,8 @@ export const NIGHT_GAP_DAYS = 0.25;
 export const MIN_ARC_DAYS = 1;
 /** Outlier passes per fit before giving up on a changing set. */
 export const MAX_OUTLIER_PASSES = 15;
+/** Preliminary orbits tried, best-scored first, until the gravity-only fit converges. */
+export const MAX_START_CANDIDATES = 3;
 
 const STATE_PARAMS = ['x', 'y', 'z', 'vx', 'vy', 'vz'] as const;
 const DEG = 180 / Math.PI;
@@ -449,8 +452,11 @@ interface Preliminary {
   chosenRoot: number | null;
 }
 
-/** Gauss on candidate triples; the best admissible root by residuals. */
-function preliminaryOrbit(arc: Arc, usable: number[], warnings: string[], checkAbort: () => void): Preliminary {
+/**
+ * Gauss on candidate triples; every admissible root scored by residuals. Returns up to MAX_START_CANDIDATES
+ * distinct candidates, best first (the fit falls back to the next one when a start does not converge).
+ */
+function preliminaryOrbit(arc: Arc, usable: number[], checkAbort: () => void): Preliminary[] {
   const order = [...usable].sort((a, b) => arc.obs[a].obsTimeTdbDays - arc.obs[b].obsTimeTdbDays);
   const nights = nightsOf(order, arc.obs);
   const mid = (night: number[]) => night[Math.floor(night.length / 2)];
@@ -479,7 +485,7 @@ function preliminaryOrbit(arc: Arc, usable: number[], warnings: string[], checkA
       if (middle !== first && middle !== last) triples.push([first, middle, last]);
     }
   }
-  let best: { sol: GaussSolution; score: number; indices: number[]; roots: number[] } | null = null;
+  const scored: { sol: GaussSolution; score: number; indices: number[]; roots: number[] }[] = [];
   const failures: string[] = [];
   for (const t of triples.slice(0, 24)) {
     checkAbort();
@@ -495,26 +501,27 @@ function preliminaryOrbit(arc: Arc, usable: number[], warnings: string[], checkA
       if (res.solutions.length === 0) failures.push(`no admissible root (roots ${res.roots.map((x) => x.toFixed(3)).join(', ') || 'none'})`);
       for (const sol of res.solutions) {
         const score = twoBodyScore(arc, usable, { r: sol.position, v: sol.velocity, epoch: sol.epoch });
-        if (!best || score < best.score) best = { sol, score, indices: t, roots: res.roots };
+        if (Number.isFinite(score)) scored.push({ sol, score, indices: t, roots: res.roots });
       }
     } catch (err) {
       if (err instanceof GaussError) failures.push(err.message);
       else throw err;
     }
   }
-  if (!best) {
+  if (scored.length === 0) {
     const why = failures.length ? failures[0] : 'no usable triple of observations';
     throw new OrbitDeterminationError('NO_ADMISSIBLE_ROOT', `Gauss's method found no admissible orbit (${triples.length} triples tried): ${why}`);
   }
-  if (triples.length > 1 && best.indices.join() !== triples[0].join()) {
-    warnings.push(`preliminary orbit from a sub-arc triple (lines ${best.indices.map((i) => arc.obs[i].line).join(', ')}), which fitted the arc best`);
+  scored.sort((x, y) => x.score - y.score);
+  const out: Preliminary[] = [];
+  for (const c of scored) {
+    // distinct orbits only (several triples usually give nearly the same one)
+    const same = out.some((o) => Math.hypot(o.state.r[0] - c.sol.position[0], o.state.r[1] - c.sol.position[1], o.state.r[2] - c.sol.position[2]) < 1e-3 * Math.hypot(...c.sol.position) && Math.abs(o.state.epoch - c.sol.epoch) < 1);
+    if (same) continue;
+    out.push({ state: { r: c.sol.position, v: c.sol.velocity, epoch: c.sol.epoch }, indices: c.indices, roots: c.roots, chosenRoot: c.sol.rootR2 });
+    if (out.length >= MAX_START_CANDIDATES) break;
   }
-  return {
-    state: { r: best.sol.position, v: best.sol.velocity, epoch: best.sol.epoch },
-    indices: best.indices,
-    roots: best.roots,
-    chosenRoot: best.sol.rootR2,
-  };
+  return out;
 }
 
 /** Default epoch: the middle of the arc rounded to 0h TDB (tdbDays = k + 0.5). */
@@ -602,42 +609,67 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   // Preliminary orbit
   checkAbort();
   progress('preliminary orbit', 0, 1);
-  let preliminary: OrbitDeterminationResult['preliminary'];
-  let startState: { r: Vec3; v: Vec3; epoch: number };
+  type Start = { state: { r: Vec3; v: Vec3; epoch: number }; preliminary: NonNullable<OrbitDeterminationResult['preliminary']> };
+  let starts: Start[];
   if (input.initialOrbit) {
     const o = input.initialOrbit;
-    startState = { r: o.positionAu as Vec3, v: o.velocityAuD as Vec3, epoch: o.epochTdbDays };
-    preliminary = { method: 'initial-solution', observationIndices: [], rootsAu: [], chosenRootAu: null };
+    starts = [{
+      state: { r: o.positionAu as Vec3, v: o.velocityAuD as Vec3, epoch: o.epochTdbDays },
+      preliminary: { method: 'initial-solution', observationIndices: [], rootsAu: [], chosenRootAu: null },
+    }];
   } else {
-    const pre = preliminaryOrbit(arc, usable, warnings, checkAbort);
-    startState = pre.state;
-    preliminary = { method: 'gauss', observationIndices: pre.indices, rootsAu: pre.roots, chosenRootAu: pre.chosenRoot };
+    starts = preliminaryOrbit(arc, usable, checkAbort).map((pre) => ({
+      state: pre.state,
+      preliminary: { method: 'gauss', observationIndices: pre.indices, rootsAu: pre.roots, chosenRootAu: pre.chosenRoot },
+    }));
   }
   progress('preliminary orbit', 1, 1);
-  let start: Vec3[];
-  if (startState.epoch === epochTdbDays) start = [startState.r, startState.v];
-  else {
+  const toEpoch = (st: Start['state']): Vec3[] => {
+    if (st.epoch === epochTdbDays) return [st.r, st.v];
     try {
-      const p = propagate({
-        positionAu: startState.r,
-        velocityAuD: startState.v,
-        fromTdbDays: startState.epoch,
-        toTdbDays: epochTdbDays,
-        model: 'n-body',
-        ephemeris,
-        nonGrav: null,
-        impactBodies: [],
-      });
-      start = [p.positionAu, p.velocityAuD];
+      const p = propagate({ positionAu: st.r, velocityAuD: st.v, fromTdbDays: st.epoch, toTdbDays: epochTdbDays, model: 'n-body', ephemeris, nonGrav: null, impactBodies: [] });
+      return [p.positionAu, p.velocityAuD];
     } catch {
-      const k = keplerUniversal(startState.r, startState.v, epochTdbDays - startState.epoch, GM_AU3_D2.sun);
-      start = [k.r, k.v];
+      const k = keplerUniversal(st.r, st.v, epochTdbDays - st.epoch, GM_AU3_D2.sun);
       warnings.push('the preliminary orbit was moved to the epoch with two-body motion (the n-body propagation failed)');
+      return [k.r, k.v];
     }
-  }
+  };
 
+  // Gravity-only fit from the best preliminary orbit; when it does not converge, from the next candidates (the
+  // converged one, else the lowest chi-square, is kept).
   const usedStart = Uint8Array.from(observations, (_, i) => (excluded.has(i) ? 0 : 1));
-  const grav = runFit(arc, epochTdbDays, 'gravity-only', [], settings, Float64Array.from([...start[0], ...start[1]]), usedStart, progress, checkAbort, warnings);
+  let grav: FitRun | null = null;
+  let gravWarnings: string[] = [];
+  let preliminary: OrbitDeterminationResult['preliminary'] = null;
+  let lastError: unknown = null;
+  for (let k = 0; k < starts.length; k++) {
+    const start = toEpoch(starts[k].state);
+    const attemptWarnings: string[] = [];
+    let run: FitRun;
+    try {
+      run = runFit(arc, epochTdbDays, 'gravity-only', [], settings, Float64Array.from([...start[0], ...start[1]]), usedStart, progress, checkAbort, attemptWarnings);
+    } catch (err) {
+      if (err instanceof FitAbortedError) throw err;
+      lastError = err;
+      continue;
+    }
+    const converged = run.result.status === 'converged';
+    const better = !grav || (converged && grav.result.status !== 'converged') ||
+      (run.result.status === grav.result.status && run.result.chiSquare < grav.result.chiSquare);
+    if (better) {
+      grav = run;
+      gravWarnings = attemptWarnings;
+      preliminary = starts[k].preliminary;
+      if (k > 0 && converged) gravWarnings.push(`the best-scored preliminary orbit did not lead to a converged fit; preliminary candidate ${k + 1} did`);
+    }
+    if (converged) break;
+  }
+  if (!grav) {
+    if (lastError instanceof OrbitDeterminationError) throw lastError;
+    throw new OrbitDeterminationError('FIT_FAILED', `the gravity-only fit failed from every preliminary orbit: ${(lastError as Error)?.message ?? 'unknown error'}`);
+  }
+  warnings.push(...gravWarnings);
   if (grav.result.status !== 'converged') warnings.push(`gravity-only fit ${grav.result.status}: ${grav.result.message}`);
 
   let ng: FitRun | null = null;
