@@ -4,8 +4,13 @@
  * positions (`-noaberr -nodefl`: light time, no aberration, no deflection) of Mars and Ceres; the partials are
  * checked against central differences of predictAstrometry itself (common practice, no source).
  */
+import fs from 'node:fs';
+import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import type { Observatory } from '../../shared/schemas/od';
+import { observatoryFileSchema, type Observatory } from '../../shared/schemas/od';
+import { loadOrbitSolution } from '../../server/engine/input/solution';
+import { gmstRad, ut1DaysFromTdbDays } from '../../server/engine/od/earthOrientation';
+import { observatoryParallax } from '../../server/engine/od/observatory';
 import { AU_KM, C_AU_D, GM_AU3_D2 } from '../../server/engine/constants';
 import { ChebyshevEphemeris } from '../../server/engine/ephemeris';
 import { EARTH_INDEX, bodyIndex } from '../../server/engine/ephemeris/bodies';
@@ -324,4 +329,70 @@ describe('synthesizeAdesPsv', () => {
     expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'HSA', utc: '2026-01-01 00:00' }] })).toThrow(/nights\[0\]\.utc/);
     expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'NOPE', utc: '2026-01-01T00:00:00Z' }] })).toThrow(/Unknown observatory code: NOPE/);
   });
+});
+
+describe('demo astrometry files (server/db/demo, written by make-astrometry.ts)', () => {
+  const here = path.resolve(__dirname, '../../server/db/demo');
+  const psv = fs.readFileSync(path.join(here, 'hso-26-u1.psv'), 'utf8');
+  const table = observatoryFileSchema.parse(JSON.parse(fs.readFileSync(path.join(here, 'hspdo-observatories.json'), 'utf8'))).observatories;
+  const parsed = parseAdesPsv(psv);
+
+  it('parse cleanly: five invented observatories (no real-register code shape), one given by parallax constants', () => {
+    expect(parsed.issues).toEqual([]);
+    expect(table.map((o) => o.code)).toEqual(['HSA', 'HSB', 'HSC', 'HSD', 'HSE']);
+    // Real observatory codes are one letter or digit followed by two digits (common practice, no source).
+    for (const o of table) expect(o.code).not.toMatch(/^[0-9A-Z][0-9]{2}$/);
+    expect(table.filter((o) => o.rhoCosPhi !== null)).toHaveLength(1);
+    expect(new Set(parsed.observations.map((o) => o.stn))).toEqual(new Set(['HSA', 'HSB', 'HSC', 'HSD', 'HSE']));
+    expect(parsed.observations.length).toBeGreaterThanOrEqual(120);
+    expect(parsed.observations.length).toBeLessThanOrEqual(210);
+    expect(parsed.observations.every((o) => o.provID === 'HSO-26-U1')).toBe(true);
+  });
+
+  it('every observation is at night at its site with the object above 15°, recomputed from the engine ephemeris', () => {
+    const times = parsed.observations.map((o) => o.obsTimeTdbDays);
+    const eph = ChebyshevEphemeris.build(Math.min(...times) - 1, Math.max(...times) + 1);
+    const e = new Float64Array(6);
+    let worstSun = -90, worstObj = 90;
+    for (const o of parsed.observations) {
+      const site = table.find((s) => s.code === o.stn)!;
+      const { rhoCosPhi, rhoSinPhi } = observatoryParallax(site);
+      const phi = Math.atan2(rhoSinPhi, rhoCosPhi); // geocentric latitude: differs from geodetic by < 0.2°, fine here
+      const lst = gmstRad(ut1DaysFromTdbDays(o.obsTimeTdbDays), o.obsTimeTdbDays) + site.longitudeDeg * DEG;
+      const alt = (ra: number, dec: number) => Math.asin(Math.sin(phi) * Math.sin(dec) + Math.cos(phi) * Math.cos(dec) * Math.cos(lst - ra)) / DEG;
+      eph.stateInto(EARTH_INDEX, o.obsTimeTdbDays, e);
+      const sunAlt = alt(Math.atan2(-e[1], -e[0]), Math.atan2(-e[2], Math.hypot(e[0], e[1])));
+      worstSun = Math.max(worstSun, sunAlt);
+      worstObj = Math.min(worstObj, alt(o.raDeg * DEG, o.decDeg * DEG));
+    }
+    console.log(`demo arc: highest Sun altitude ${worstSun.toFixed(1)}°, lowest object altitude ${worstObj.toFixed(1)}°`);
+    expect(worstSun).toBeLessThan(-8.5); // generator: Sun below −9° (0.5° margin for its 6-hour interpolation)
+    expect(worstObj).toBeGreaterThan(14.5); // generator: object above 15°
+  });
+
+  it('is the version-2 orbit plus noise: the stated rms fits, and exactly the three planted outliers stand out', () => {
+    const orbit = loadOrbitSolution(fs.readFileSync(path.join(here, 'hso-26-u1.v2.json'), 'utf8'));
+    const obs = parsed.observations;
+    const st = observerStatesAu(obs, table);
+    const pred = predictAstrometry({
+      epochTdbDays: orbit.epochTdbDays, positionAu: orbit.positionAu, velocityAuD: orbit.velocityAuD, nonGrav: orbit.nonGrav,
+      observations: obs.map((o, i) => ({ obsTimeTdbDays: o.obsTimeTdbDays, observerPositionAu: st[i].positionAu, observerVelocityAuD: st[i].velocityAuD })),
+      partials: false,
+    });
+    const big: string[] = [];
+    let chi2 = 0, m = 0;
+    obs.forEach((o, i) => {
+      const dRa = wrapPi(o.raDeg * DEG - pred[i].raRad) * Math.cos(pred[i].decRad) / ARCSEC;
+      const dDec = (o.decDeg * DEG - pred[i].decRad) / ARCSEC;
+      if (Math.hypot(dRa, dDec) > 2.5) big.push(`${o.stn} line ${o.line}`);
+      else {
+        chi2 += (dRa / o.rmsRaArcsec!) ** 2 + (dDec / o.rmsDecArcsec!) ** 2;
+        m += 2;
+      }
+    });
+    expect(big).toHaveLength(3);
+    expect(new Set(big.map((b) => b.slice(0, 3)))).toEqual(new Set(['HSA', 'HSC', 'HSD']));
+    // chi²/m of N(0,1) values with m ≈ 400: 1 ± 0.07 (1 sigma); allow ±0.25.
+    expect(Math.abs(chi2 / m - 1)).toBeLessThan(0.25);
+  }, 120_000);
 });
