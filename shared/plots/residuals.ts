@@ -182,7 +182,7 @@ export function residualsSvg(residuals: readonly Residual[], opts: ResidualsSvgO
     p.push(`<text x="${n2(width / 2)}" y="22" text-anchor="middle" font-size="14" font-weight="bold" fill="${C.text}">${esc(title)}</text>`);
   }
   const yTicks = niceTicks(-yMax, yMax, 6).filter((v) => Math.abs(v) <= yMax * (1 + 1e-9));
-  const xTicks = dateTicks(tMin, tMax, Math.max(3, Math.floor(boxes.ra.w / 110)));
+  const xTicks = dateTicks(tMin, tMax, Math.max(3, Math.floor(boxes.ra.w / 85)));
   for (const [panel, label] of [
     ['ra', 'RA·cos(Dec) (″)'],
     ['dec', 'Dec (″)'],

@@ -8,6 +8,9 @@ import { Card } from '../../components/ui';
 import { formatNumber, formatRatio } from '../objects/format';
 import { elementLabel, fixed, formatP } from './format';
 
+/** A significance in sigma: one decimal from 1 up, two significant digits below (0.042 σ, not 0.0 σ). */
+const sigmaText = (x: number) => (!Number.isFinite(x) ? '—' : `${Math.abs(x) >= 1 ? x.toFixed(1) : Number(x.toPrecision(2))} σ`);
+
 function Stat({ label, value, testId }: { label: string; value: string; testId?: string }) {
   return (
     <div className="rounded-md border border-rule bg-paper/50 px-3 py-2">
@@ -47,7 +50,7 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
               <tr className="border-t border-rule"><th scope="row" className="py-1 pr-3 text-left font-medium">Normalised RMS</th><td className="py-1 pr-3">{fixed(gravityOnly.rmsNormalized, 3)}</td><td className="py-1">{fixed(nonGrav.rmsNormalized, 3)}</td></tr>
               <tr className="border-t border-rule"><th scope="row" className="py-1 pr-3 text-left font-medium">χ² (dof)</th><td className="py-1 pr-3">{fixed(gravityOnly.chiSquare, 1)} ({gravityOnly.degreesOfFreedom})</td><td className="py-1">{fixed(nonGrav.chiSquare, 1)} ({nonGrav.degreesOfFreedom})</td></tr>
               <tr className="border-t border-rule"><th scope="row" className="py-1 pr-3 text-left font-medium">Used / total</th><td className="py-1 pr-3">{gravityOnly.observationsUsed} / {gravityOnly.observationsTotal}</td><td className="py-1">{nonGrav.observationsUsed} / {nonGrav.observationsTotal}</td></tr>
-              <tr className="border-t border-rule"><th scope="row" className="py-1 pr-3 text-left font-medium">Residual trend</th><td className="py-1 pr-3">{fixed(comparison.residualTrend.gravityOnlySigma, 1)} σ</td><td className="py-1">{fixed(comparison.residualTrend.nonGravSigma, 1)} σ</td></tr>
+              <tr className="border-t border-rule"><th scope="row" className="py-1 pr-3 text-left font-medium">Residual trend</th><td className="py-1 pr-3">{sigmaText(comparison.residualTrend.gravityOnlySigma)}</td><td className="py-1">{sigmaText(comparison.residualTrend.nonGravSigma)}</td></tr>
             </tbody>
           </table>
           <p className="mt-2 text-xs text-ink-soft">Trend: {comparison.residualTrend.description}</p>
@@ -58,7 +61,7 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
           <dl className="grid grid-cols-3 gap-2">
             <Stat label="Δχ²" value={fixed(comparison.deltaChiSquare, 1)} testId="delta-chi-square" />
             <Stat label={`p-value (χ², ${k} dof)`} value={formatP(comparison.pValue)} testId="p-value" />
-            <Stat label="Significance" value={`${fixed(comparison.significanceSigma, 1)} σ`} testId="significance" />
+            <Stat label="Significance" value={sigmaText(comparison.significanceSigma)} testId="significance" />
           </dl>
           <table className="mt-3 w-full text-sm tabular-nums">
             <thead>
