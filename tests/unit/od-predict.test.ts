@@ -328,6 +328,7 @@ describe('synthesizeAdesPsv', () => {
     expect(() => synthesizeAdesPsv({ ...base, noiseArcsec: -1 })).toThrow(/noiseArcsec/);
     expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'HSA', utc: '2026-01-01 00:00' }] })).toThrow(/nights\[0\]\.utc/);
     expect(() => synthesizeAdesPsv({ ...base, nights: [{ stn: 'NOPE', utc: '2026-01-01T00:00:00Z' }] })).toThrow(/Unknown observatory code: NOPE/);
+    expect(() => synthesizeAdesPsv({ ...base, nights: [nights[0], nights[1], { ...nights[0], utc: nights[0].utc.replace('Z', '0Z') }] })).toThrow(/nights\[2\] repeats nights\[0\]/);
   });
 });
 

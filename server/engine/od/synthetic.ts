@@ -15,7 +15,7 @@ import { defaultEphemeris } from '../dynamics/ephemeris-source';
 import { RandomStream } from '../risk/random';
 import { tdbDaysFromUtc } from '../time';
 import type { Vec3 } from '../vec';
-import { normalizeObsTime } from './ades';
+import { normalizeObsTime, observationKey } from './ades';
 import { observerStatesAu } from './observer';
 import { predictAstrometry } from './predict';
 
@@ -64,6 +64,13 @@ export function synthesizeAdesPsv(opts: SyntheticArcOptions): SyntheticArc {
     outliers.set(o.index, o.offsetArcsec);
   }
   const times = opts.nights.map((x, i) => utcToTdbDays(x.utc, i));
+  const seen = new Map<string, number>();
+  opts.nights.forEach((x, i) => {
+    const key = observationKey({ stn: x.stn, obsTime: x.utc });
+    const j = seen.get(key);
+    if (j !== undefined) throw new RangeError(`nights[${i}] repeats nights[${j}] (same station and instant to the millisecond)`);
+    seen.set(key, i);
+  });
   const lo = Math.min(opts.orbit.epochTdbDays, ...times);
   const hi = Math.max(opts.orbit.epochTdbDays, ...times);
   const eph = defaultEphemeris(lo - 0.1, hi + 0.1);
