@@ -1,5 +1,5 @@
 // The list part of a workflow list page (bulletins, releases): a heading with a workflow-state filter kept in the
-// address (?state=…), then loading, error (with retry), an empty line, or the caller's table.
+// address (?state=…), then loading, error (with retry), an empty line, or the table (the caller draws the rows).
 import type { ReactNode } from 'react';
 import { useSearchParams } from 'react-router';
 import type { UseQueryResult } from '@tanstack/react-query';
@@ -24,7 +24,8 @@ export function StateFilteredList<S extends string, T>({
   filterClassName,
   list,
   tableClassName,
-  children,
+  columns,
+  row,
 }: {
   headingId: string;
   heading: string;
@@ -39,8 +40,10 @@ export function StateFilteredList<S extends string, T>({
   list: UseQueryResult<T[]>;
   /** The table's minimum width, e.g. "min-w-[48rem]". */
   tableClassName: string;
-  /** The table's head and body for the loaded rows. */
-  children: (rows: T[]) => ReactNode;
+  /** The column headings. */
+  columns: readonly string[];
+  /** One table row (<tr> with a key) per loaded item. */
+  row: (item: T) => ReactNode;
 }) {
   return (
     <section aria-labelledby={headingId}>
@@ -67,7 +70,18 @@ export function StateFilteredList<S extends string, T>({
           </p>
         ) : (
           <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-            <table className={`w-full ${tableClassName} text-left text-sm`}>{children(list.data)}</table>
+            <table className={`w-full ${tableClassName} text-left text-sm`}>
+              <thead className="bg-accent-50">
+                <tr>
+                  {columns.map((c) => (
+                    <th key={c} scope="col" className="px-3 py-2">
+                      {c}
+                    </th>
+                  ))}
+                </tr>
+              </thead>
+              <tbody>{list.data.map(row)}</tbody>
+            </table>
           </div>
         ))}
     </section>

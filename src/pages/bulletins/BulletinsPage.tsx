@@ -76,46 +76,29 @@ export function BulletinsPage() {
           filterClassName="w-48"
           list={list}
           tableClassName="min-w-[48rem]"
-        >
-          {(rows) => (
-            <>
-              <thead className="bg-accent-50">
-                <tr>
-                  <th scope="col" className="px-3 py-2">Number</th>
-                  <th scope="col" className="px-3 py-2">Title</th>
-                  <th scope="col" className="px-3 py-2">Object</th>
-                  <th scope="col" className="px-3 py-2">State</th>
-                  <th scope="col" className="px-3 py-2">Version</th>
-                  <th scope="col" className="px-3 py-2">Author</th>
-                  <th scope="col" className="px-3 py-2">Updated</th>
-                </tr>
-              </thead>
-              <tbody>
-                {rows.map((b) => (
-                  <tr key={b.id} className="border-t border-rule" data-testid={`bulletin-row-${b.id}`}>
-                    <td className="px-3 py-2 whitespace-nowrap tabular-nums">{b.number}</td>
-                    <td className="px-3 py-2">
-                      <Link to={`/bulletins/${b.id}`} className="font-medium">
-                        {b.title}
-                      </Link>
-                    </td>
-                    <td className="px-3 py-2 whitespace-nowrap">{b.objectDesignation}</td>
-                    <td className="px-3 py-2">
-                      <BulletinStateBadge state={b.state} />
-                    </td>
-                    <td className="px-3 py-2 whitespace-nowrap tabular-nums">
-                      {[b.latestVersion ? `v${b.latestVersion}` : null, b.state === 'draft' || b.state === 'in_review' || b.state === 'changes_requested' ? `drafting v${b.draftVersion}` : null]
-                        .filter(Boolean)
-                        .join(' · ')}
-                    </td>
-                    <td className="px-3 py-2 whitespace-nowrap">{b.author?.name ?? '—'}</td>
-                    <td className="px-3 py-2 whitespace-nowrap">{formatUtc(b.updatedAt, { seconds: false })}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </>
+          columns={['Number', 'Title', 'Object', 'State', 'Version', 'Author', 'Updated']}
+          row={(b) => (
+            <tr key={b.id} className="border-t border-rule" data-testid={`bulletin-row-${b.id}`}>
+              <td className="px-3 py-2 whitespace-nowrap tabular-nums">{b.number}</td>
+              <td className="px-3 py-2">
+                <Link to={`/bulletins/${b.id}`} className="font-medium">
+                  {b.title}
+                </Link>
+              </td>
+              <td className="px-3 py-2 whitespace-nowrap">{b.objectDesignation}</td>
+              <td className="px-3 py-2">
+                <BulletinStateBadge state={b.state} />
+              </td>
+              <td className="px-3 py-2 whitespace-nowrap tabular-nums">
+                {[b.latestVersion ? `v${b.latestVersion}` : null, b.state === 'draft' || b.state === 'in_review' || b.state === 'changes_requested' ? `drafting v${b.draftVersion}` : null]
+                  .filter(Boolean)
+                  .join(' · ')}
+              </td>
+              <td className="px-3 py-2 whitespace-nowrap">{b.author?.name ?? '—'}</td>
+              <td className="px-3 py-2 whitespace-nowrap">{formatUtc(b.updatedAt, { seconds: false })}</td>
+            </tr>
           )}
-        </StateFilteredList>
+        />
       </div>
     </div>
   );

@@ -98,60 +98,44 @@ export function ReleasesPage() {
           filterClassName="w-56"
           list={list}
           tableClassName="min-w-[52rem]"
-        >
-          {(rows) => (
-            <>
-              <thead className="bg-accent-50">
-                <tr>
-                  <th scope="col" className="px-3 py-2">Number</th>
-                  <th scope="col" className="px-3 py-2">Headline</th>
-                  <th scope="col" className="px-3 py-2">From</th>
-                  <th scope="col" className="px-3 py-2">State</th>
-                  <th scope="col" className="px-3 py-2">Publication</th>
-                  <th scope="col" className="px-3 py-2">Author</th>
-                </tr>
-              </thead>
-              <tbody>
-                {rows.map((r) => (
-                  <tr key={r.id} className="border-t border-rule align-top" data-testid={`release-row-${r.id}`}>
-                    <td className="px-3 py-2 whitespace-nowrap tabular-nums">{r.number}</td>
-                    <td className="px-3 py-2">
-                      <Link to={`/releases/${r.id}`} className="font-medium">
-                        {r.title}
-                      </Link>
-                    </td>
-                    <td className="px-3 py-2 whitespace-nowrap">
-                      {r.source.bulletinNumber} v{r.source.version}
-                    </td>
-                    <td className="px-3 py-2">
-                      <ReleaseStateBadge state={r.state} />
-                    </td>
-                    <td className="px-3 py-2 tabular-nums">
-                      {r.state === 'published' && r.publication.publishedAt ? (
-                        <>
-                          {formatUtc(r.publication.publishedAt, { seconds: false })}
-                          {r.publication.slug && (
-                            <a className="block" href={publicReleaseUrl(r.publication.slug)}>
-                              public page
-                            </a>
-                          )}
-                        </>
-                      ) : r.state === 'scheduled' && r.publication.publishAt ? (
-                        <>
-                          {formatUtc(r.publication.publishAt)}
-                          {here !== 'UTC' && <span className="block text-xs text-ink-soft">{formatInZone(r.publication.publishAt, here)}</span>}
-                        </>
-                      ) : (
-                        '—'
-                      )}
-                    </td>
-                    <td className="px-3 py-2 whitespace-nowrap">{r.author?.name ?? '—'}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </>
+          columns={['Number', 'Headline', 'From', 'State', 'Publication', 'Author']}
+          row={(r) => (
+            <tr key={r.id} className="border-t border-rule align-top" data-testid={`release-row-${r.id}`}>
+              <td className="px-3 py-2 whitespace-nowrap tabular-nums">{r.number}</td>
+              <td className="px-3 py-2">
+                <Link to={`/releases/${r.id}`} className="font-medium">
+                  {r.title}
+                </Link>
+              </td>
+              <td className="px-3 py-2 whitespace-nowrap">
+                {r.source.bulletinNumber} v{r.source.version}
+              </td>
+              <td className="px-3 py-2">
+                <ReleaseStateBadge state={r.state} />
+              </td>
+              <td className="px-3 py-2 tabular-nums">
+                {r.state === 'published' && r.publication.publishedAt ? (
+                  <>
+                    {formatUtc(r.publication.publishedAt, { seconds: false })}
+                    {r.publication.slug && (
+                      <a className="block" href={publicReleaseUrl(r.publication.slug)}>
+                        public page
+                      </a>
+                    )}
+                  </>
+                ) : r.state === 'scheduled' && r.publication.publishAt ? (
+                  <>
+                    {formatUtc(r.publication.publishAt)}
+                    {here !== 'UTC' && <span className="block text-xs text-ink-soft">{formatInZone(r.publication.publishAt, here)}</span>}
+                  </>
+                ) : (
+                  '—'
+                )}
+              </td>
+              <td className="px-3 py-2 whitespace-nowrap">{r.author?.name ?? '—'}</td>
+            </tr>
           )}
-        </StateFilteredList>
+        />
       </div>
     </div>
   );
