@@ -83,7 +83,7 @@ export function ObservatoriesPage() {
                       <td className="px-3 py-2">{o.longitudeDeg}°</td>
                       <td className="px-3 py-2">{site(o)}</td>
                       <td className="px-3 py-2">{o.observationCount}</td>
-                      <td className="px-3 py-2">{formatUtc(o.updatedAt)}</td>
+                      <td className="px-3 py-2 whitespace-nowrap">{formatUtc(o.updatedAt)}</td>
                       {canManage && (
                         <td className="px-3 py-2 whitespace-nowrap">
                           <Button variant="quiet" onClick={() => { setMessage(null); setEditing(o); }} aria-label={`Edit ${o.code}`}>Edit</Button>

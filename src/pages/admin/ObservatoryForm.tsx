@@ -98,7 +98,8 @@ export function ObservatoryForm({ row, onDone, onCancel }: { row: ObservatoryRow
       <h2 id={headingId} className="mb-4 text-lg font-semibold">{editing ? `Edit observatory ${row.code}` : 'Add an observatory'}</h2>
       <form onSubmit={submit} noValidate className="grid gap-4 sm:grid-cols-2">
         <TextField label="Code" value={text.code} onChange={set('code')} error={errors.code} readOnly={editing} hint={editing ? 'The code cannot change (observations name it).' : 'As written in the ADES stn field: 1 to 8 letters or digits'} />
-        <TextField label="Name" value={text.name} onChange={set('name')} error={errors.name} />
+        {/* focused when editing, so the form (above the table) comes into view */}
+        <TextField label="Name" value={text.name} onChange={set('name')} error={errors.name} autoFocus={editing} />
         <TextField label="East longitude (°)" inputMode="decimal" value={text.longitudeDeg} onChange={set('longitudeDeg')} error={errors.longitudeDeg} hint="0 to 360, east of Greenwich" />
         <fieldset className="sm:col-span-2">
           <legend className="mb-1 block text-sm font-medium text-ink">Site given by</legend>

@@ -135,7 +135,8 @@ export function ObjectPage() {
         )}
         {shown !== null && <SolutionDetail key={shown} objectId={id} version={shown} onClose={() => setShown(null)} />}
         <ObjectOdLinks objectId={id} />
-        {solutions.data && <ObjectRuns objectId={id} solutions={solutions.data} />}
+        {/* keyed on the newest version so the start-run form picks up a version added meanwhile (e.g. an adopted fit) */}
+        {solutions.data && <ObjectRuns key={solutions.data[0]?.id ?? 0} objectId={id} solutions={solutions.data} />}
         {ability.can('create', 'Solution') && <UploadSolutionForm objectId={id} onDone={setAdded} />}
       </div>
     </div>
