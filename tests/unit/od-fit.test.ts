@@ -188,6 +188,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
         const r = determineOrbit({ observations: syntheticArc(truth, times, 0.5, seed), observatories: OBSERVATORIES, settings }, { skipEncounter: true });
         expect(r.gravityOnly.status).toBe('converged');
         expect(r.preliminary?.method).toBe('gauss');
+        expect(r.preliminary!.rootsAu).toContain(r.preliminary!.chosenRootAu);
         chis.push(stateChiSquare(r.gravityOnly, truth));
       }
       const mean = chis.reduce((a, b) => a + b, 0) / chis.length;

@@ -47,6 +47,7 @@ describe('Gauss on Curtis Examples 5.11/5.12 (geocentric; values recalled from m
 
   it('finds one admissible root near the book value r2 ≈ 9241.8 km (recalled from memory)', () => {
     expect(res.solutions).toHaveLength(1);
+    expect(res.admissibleRoots).toEqual([res.solutions[0].rootR2]);
     expect(Math.abs(res.solutions[0].rootR2 - 9241.8)).toBeLessThan(2);
   });
 
@@ -117,6 +118,9 @@ describe('Gauss heliocentric (synthetic two-body case, light time; METHODS §9.3
     const obs = makeObs([t0 - 20, t0, t0 + 20]);
     const res = gaussMethod(obs, { mu, speedOfLight: C_AU_D });
     expect(res.solutions.length).toBeGreaterThanOrEqual(1);
+    // three positive roots; the largest (~9 AU) gives negative ranges and is not admissible
+    expect(res.roots).toHaveLength(3);
+    expect(res.admissibleRoots).toEqual(res.roots.slice(0, 2));
     const errs = res.solutions.map((s) => {
       const truthAt = keplerUniversal(truth.r, truth.v, s.epoch - t0, mu);
       return Math.hypot(s.position[0] - truthAt.r[0], s.position[1] - truthAt.r[1], s.position[2] - truthAt.r[2]);

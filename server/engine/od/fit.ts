@@ -501,7 +501,7 @@ function preliminaryOrbit(arc: Arc, usable: number[], checkAbort: () => void): P
       if (res.solutions.length === 0) failures.push(`no admissible root (roots ${res.roots.map((x) => x.toFixed(3)).join(', ') || 'none'})`);
       for (const sol of res.solutions) {
         const score = twoBodyScore(arc, usable, { r: sol.position, v: sol.velocity, epoch: sol.epoch });
-        if (Number.isFinite(score)) scored.push({ sol, score, indices: t, roots: res.roots });
+        if (Number.isFinite(score)) scored.push({ sol, score, indices: t, roots: res.admissibleRoots });
       }
     } catch (err) {
       if (err instanceof GaussError) failures.push(err.message);

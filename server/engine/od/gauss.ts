@@ -89,6 +89,8 @@ export interface GaussSolution {
 export interface GaussResult {
   /** every positive real root of the polynomial */
   roots: number[];
+  /** the roots that give positive ranges ρ1, ρ2, ρ3 (admissible, METHODS §9.3) */
+  admissibleRoots: number[];
   /** solutions from the admissible roots (positive ranges), best-conditioned first is not implied: in root order */
   solutions: GaussSolution[];
   d0: number;
@@ -176,6 +178,7 @@ export function gaussMethod(observations: readonly GaussObservation[], options: 
   const roots = gaussPolynomialRoots(a, b, cc);
 
   const solutions: GaussSolution[] = [];
+  const admissibleRoots: number[] = [];
   for (const r2 of roots) {
     const r23 = r2 * r2 * r2;
     const rho2 = A + (mu * B) / r23;
@@ -190,6 +193,7 @@ export function gaussMethod(observations: readonly GaussObservation[], options: 
         D[2][2]) /
       D0;
     if (!(rho1 > 0 && rho2 > 0 && rho3 > 0)) continue;
+    admissibleRoots.push(r2);
     let f1 = 1 - (mu * tau1 * tau1) / (2 * r23);
     let f3 = 1 - (mu * tau3 * tau3) / (2 * r23);
     let g1 = tau1 - (mu * tau1 * tau1 * tau1) / (6 * r23);
@@ -281,7 +285,7 @@ export function gaussMethod(observations: readonly GaussObservation[], options: 
       converged,
     });
   }
-  return { roots, solutions, d0: D0 };
+  return { roots, admissibleRoots, solutions, d0: D0 };
 }
 
 /**
