@@ -234,3 +234,32 @@ describe('dateTicks', () => {
     expect(months.map((t) => new Date(t).toISOString().slice(0, 10))).toEqual(['2026-01-01', '2026-03-01', '2026-05-01', '2026-07-01', '2026-09-01']);
   });
 });
+
+describe('sexagesimal display of positions (astrometry table)', () => {
+  // RA hours = degrees / 15; minutes and seconds by 60 (common practice, no source). Worked by hand:
+  // 257.641893942 / 15 = 17.176126263 h -> 10.567576 min -> 34.0546 s.
+  it('prints RA as hh mm ss.sss and Dec as ±dd mm ss.ss', async () => {
+    const { formatRa, formatDec } = await import('../../src/pages/astrometry/format');
+    expect(formatRa(257.641893942)).toBe('17 10 34.055');
+    expect(formatDec(38.913297448)).toBe('+38 54 47.87'); // 0.913297448 deg = 54.797847 min -> 47.87 s
+    // the sign survives a Dec between 0 and -1 degree (no "-0" degrees lost)
+    expect(formatDec(-0.5)).toBe('−00 30 00.00');
+    // rounding carries into the next unit instead of printing 60 s, and RA wraps at 24 h
+    expect(formatRa(359.9999999999)).toBe('00 00 00.000');
+    expect(formatDec(-12.999999999)).toBe('−13 00 00.00');
+  });
+});
+
+describe('residual table CSV', () => {
+  // RFC 4180: fields with commas or quotes are quoted, quotes doubled.
+  it('writes one line per residual with full precision and quotes what needs it', async () => {
+    const { residualsCsv } = await import('../../src/pages/fits/format');
+    const rows = sample().slice(0, 2);
+    rows[1] = { ...rows[1], stn: 'A,"B"' };
+    const lines = residualsCsv(rows).trimEnd().split('\n');
+    expect(lines).toHaveLength(3);
+    expect(lines[0].split(',')).toHaveLength(9);
+    expect(lines[1]).toBe(`10,HSA,2026-03-10T21:00:00.000Z,0.3,-0.2,0.3,0.25,${rows[0].chiSquare},used`);
+    expect(lines[2].startsWith('11,"A,""B""",2026-04-02T22:30:00.000Z,-0.4,0.1,')).toBe(true);
+  });
+});

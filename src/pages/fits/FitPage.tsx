@@ -120,7 +120,7 @@ export function FitPage() {
             {result.nonGrav && result.comparison && <ComparisonView gravityOnly={result.gravityOnly} nonGrav={result.nonGrav} comparison={result.comparison} />}
             <ResidualPlots result={result} excluded={excluded} fileStem={`tocsin-fit-${fit.id}`} />
             <FitSummary fits={fits} />
-            <ResidualTable fits={fits} excluded={excluded} />
+            <ResidualTable fits={fits} excluded={excluded} fileStem={`tocsin-fit-${fit.id}`} />
             <section aria-labelledby="fit-provenance-heading">
               <h2 id="fit-provenance-heading" className="mb-2 text-lg font-semibold">Provenance</h2>
               <dl className="grid grid-cols-[max-content_1fr] gap-x-4 gap-y-1 text-sm">

@@ -5,7 +5,7 @@ import { useState } from 'react';
 import type { FitResult, Residual } from '../../../shared/schemas/od';
 import { SelectField } from '../../components/ui';
 import { formatObsTime } from '../astrometry/format';
-import { FIT_LABELS } from './format';
+import { FIT_LABELS, residualsCsv } from './format';
 
 type SortKey = 'time' | 'stn' | 'ra' | 'dec' | 'chi' | 'status';
 const COLUMNS: { key: SortKey; label: string }[] = [
@@ -20,7 +20,16 @@ const COLUMNS: { key: SortKey; label: string }[] = [
 const value = (r: Residual, k: SortKey): number | string =>
   k === 'time' ? r.obsTimeTdbDays : k === 'stn' ? r.stn : k === 'ra' ? r.raCosDecArcsec : k === 'dec' ? r.decArcsec : k === 'chi' ? r.chiSquare : r.status;
 
-export function ResidualTable({ fits, excluded }: { fits: FitResult[]; excluded?: (r: Residual) => boolean }) {
+function downloadCsv(text: string, name: string) {
+  const url = URL.createObjectURL(new Blob([text], { type: 'text/csv' }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = name;
+  a.click();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+export function ResidualTable({ fits, excluded, fileStem }: { fits: FitResult[]; excluded?: (r: Residual) => boolean; fileStem: string }) {
   const [which, setWhich] = useState(fits[fits.length - 1].label);
   const [station, setStation] = useState('');
   const [status, setStatus] = useState('');
@@ -41,7 +50,12 @@ export function ResidualTable({ fits, excluded }: { fits: FitResult[]; excluded?
       <div className="mb-3 flex flex-wrap items-end justify-between gap-3">
         <div>
           <h2 id="residual-table-heading" className="text-lg font-semibold">Residual table</h2>
-          <p className="text-sm text-ink-soft">{rows.length} of {fit.residuals.length} observations shown · {fit.residuals.filter((r) => r.status === 'rejected').length} rejected by the χ² rule</p>
+          <p className="text-sm text-ink-soft">
+            {rows.length} of {fit.residuals.length} observations shown · {fit.residuals.filter((r) => r.status === 'rejected').length} rejected by the χ² rule ·{' '}
+            <button type="button" className="text-accent-700 underline" onClick={() => downloadCsv(residualsCsv(rows), `${fileStem}-${fit.label}-residuals.csv`)}>
+              Download these rows (CSV)
+            </button>
+          </p>
         </div>
         <div className="flex flex-wrap gap-3">
           {fits.length > 1 && (

@@ -36,3 +36,10 @@ export function formatP(p: number): string {
 export const fixed = (x: number | null | undefined, digits: number) => (x === null || x === undefined || !Number.isFinite(x) ? '—' : x.toFixed(digits));
 
 export const FIT_LABELS = { 'gravity-only': 'Gravity only', 'non-gravitational': 'With non-gravitational terms' } as const;
+
+/** Residuals as CSV (one header line, full precision, the units in the column names). */
+export function residualsCsv(rows: readonly { line: number; stn: string; obsTime: string; raCosDecArcsec: number; decArcsec: number; sigmaRaArcsec: number; sigmaDecArcsec: number; chiSquare: number; status: string }[]): string {
+  const head = 'line,stn,obsTimeUtc,oMinusCRaCosDecArcsec,oMinusCDecArcsec,sigmaRaArcsec,sigmaDecArcsec,chiSquare,status';
+  const quote = (s: string) => (/[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s);
+  return [head, ...rows.map((r) => [r.line, quote(r.stn), r.obsTime, r.raCosDecArcsec, r.decArcsec, r.sigmaRaArcsec, r.sigmaDecArcsec, r.chiSquare, r.status].join(','))].join('\n') + '\n';
+}
