@@ -265,6 +265,7 @@ describe('observerStatesAu', () => {
     expect(err).toBeInstanceOf(UnknownObservatoryError);
     expect((err as UnknownObservatoryError).codes).toEqual(['QQ1', 'ZZ9']);
     expect((err as Error).message).toMatch(/QQ1, ZZ9/);
+    expect(() => observerStatesAu([{ stn: 'HSA', obsTimeTdbDays: t0 }, { stn: 'HSB', obsTimeTdbDays: Number.NaN }], table)).toThrow(/item 1 \(HSB\): obsTimeTdbDays must be finite/);
   });
 });
 

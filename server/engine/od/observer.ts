@@ -51,14 +51,16 @@ export function observerStatesAu(
   const missing = items.filter((it) => !table.has(it.stn)).map((it) => it.stn);
   if (missing.length > 0) throw new UnknownObservatoryError(missing);
   if (items.length === 0) return [];
+  items.forEach((it, i) => {
+    if (!Number.isFinite(it.obsTimeTdbDays)) throw new RangeError(`item ${i} (${it.stn}): obsTimeTdbDays must be finite, got ${it.obsTimeTdbDays}`);
+  });
   let eph = ephemeris;
   if (!eph) {
     const times = items.map((it) => it.obsTimeTdbDays);
-    eph = defaultEphemeris(Math.min(...times), Math.max(...times) + 1e-3);
+    eph = defaultEphemeris(times.reduce((a, t) => Math.min(a, t), Infinity), times.reduce((a, t) => Math.max(a, t), -Infinity) + 1e-3);
   }
   const earth = new Float64Array(6);
   return items.map((it) => {
-    if (!Number.isFinite(it.obsTimeTdbDays)) throw new RangeError(`observation time must be finite, got ${it.obsTimeTdbDays}`);
     eph.stateInto(EARTH_INDEX, it.obsTimeTdbDays, earth);
     const site = siteGeocentricAu(table.get(it.stn)!, it.obsTimeTdbDays);
     return {

@@ -81,8 +81,8 @@ export function sunBarycentricVelocityAuD(eph: PlanetEphemeris, tdbDays: number,
 
 type SideSample = { state: Float64Array; phi: Float64Array | null; columns: number };
 
-function checkVec(name: string, v: readonly number[]): void {
-  if (!Array.isArray(v) || v.length !== 3 || v.some((x) => !Number.isFinite(x))) {
+function checkVec(name: string, v: ArrayLike<number>): void {
+  if (v == null || v.length !== 3 || !Number.isFinite(v[0]) || !Number.isFinite(v[1]) || !Number.isFinite(v[2])) {
     throw new RangeError(`${name} must be three finite numbers`);
   }
 }
@@ -109,8 +109,8 @@ export function predictAstrometry(opts: PredictOptions): PredictedAstrometry[] {
   if (obs.length === 0) return [];
 
   const times = obs.map((o) => o.obsTimeTdbDays);
-  const lo = Math.min(epoch, ...times);
-  const hi = Math.max(epoch, ...times);
+  const lo = times.reduce((a, t) => Math.min(a, t), epoch);
+  const hi = times.reduce((a, t) => Math.max(a, t), epoch);
   // The ephemeris also serves the Sun's barycentric velocity (both models) and the n-body acceleration.
   const eph = opts.ephemeris ?? defaultEphemeris(lo - 0.1, hi + 0.1);
   if (lo - 0.05 < eph.startTdbDays || hi + 0.05 > eph.endTdbDays) {

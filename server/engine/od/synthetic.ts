@@ -71,8 +71,8 @@ export function synthesizeAdesPsv(opts: SyntheticArcOptions): SyntheticArc {
     if (j !== undefined) throw new RangeError(`nights[${i}] repeats nights[${j}] (same station and instant to the millisecond)`);
     seen.set(key, i);
   });
-  const lo = Math.min(opts.orbit.epochTdbDays, ...times);
-  const hi = Math.max(opts.orbit.epochTdbDays, ...times);
+  const lo = times.reduce((a, t) => Math.min(a, t), opts.orbit.epochTdbDays);
+  const hi = times.reduce((a, t) => Math.max(a, t), opts.orbit.epochTdbDays);
   const eph = defaultEphemeris(lo - 0.1, hi + 0.1);
   const observers = observerStatesAu(opts.nights.map((x, i) => ({ stn: x.stn, obsTimeTdbDays: times[i] })), opts.observatories, eph);
   const predicted = predictAstrometry({
