@@ -99,6 +99,8 @@ describe('parseAdesPsv: every malformed line gives its line and field', () => {
     { name: 'bad mag', over: { mag: 'bright' }, field: 'mag', message: /not a number/ },
     { name: 'radar line', over: { mode: 'RAD' }, field: 'mode', message: /Radar.*not supported/ },
     { name: 'unknown mode', over: { mode: 'XYZ' }, field: 'mode', message: /not an optical ADES mode/ },
+    { name: 'occultation line', over: { mode: 'OCC' }, field: 'mode', message: /Occultation.*not supported/ },
+    { name: 'magnitude out of the ADES range', over: { mag: '36' }, field: 'mag', message: /\[-5, 35\]/ },
     { name: 'empty mode', over: { mode: '' }, field: 'mode', message: /required/ },
     { name: 'no identity', over: { provID: '' }, field: 'permID', message: /permID, provID or trkSub/ },
     { name: 'bad station code', over: { stn: 'H-1' }, field: 'stn', message: /observatory code/ },
@@ -143,6 +145,18 @@ describe('parseAdesPsv: every malformed line gives its line and field', () => {
   it('space-based observer positions are refused with the field', () => {
     const r = parseAdesPsv(['# version=2022', 'provID|mode|stn|sys|obsTime|ra|dec', 'X|CCD|HSA|ICRF_KM|2026-03-01T03:12:45Z|1|2'].join('\n'));
     expect(r.issues).toEqual([{ line: 3, field: 'sys', message: expect.stringMatching(/not supported/) }]);
+  });
+
+  it('radar delay on a line is refused with the field (ADES radar records are not optical astrometry)', () => {
+    const r = parseAdesPsv(['# version=2022', 'provID|mode|stn|obsTime|ra|dec|delay|rmsDelay', 'X|CCD|HSA|2026-03-01T03:12:45Z|1|2|12.5|0.1'].join('\n'));
+    expect(r.issues).toEqual([{ line: 3, field: 'delay', message: expect.stringMatching(/Radar.*not supported/) }]);
+  });
+
+  it('every mode of the ADES field-value list for images is accepted (MPC list as quoted in public code)', () => {
+    const modes = ['CCD', 'CMO', 'VID', 'PHO', 'ENC', 'PMT', 'MIC', 'MER', 'TDI', 'UNK'];
+    const r = parseAdesPsv(file(...modes.map((mode, k) => row({ mode, obsTime: `2026-03-01T0${k}:00:00Z` }))));
+    expect(r.issues).toEqual([]);
+    expect(r.observations.map((o) => o.mode)).toEqual(modes);
   });
 
   it('version line missing, unsupported, or repeated', () => {

@@ -38,32 +38,38 @@ const REQUIRED_FIELDS = ['obsTime', 'ra', 'dec', 'stn', 'mode'] as const;
 const IDENTITY_FIELDS = ['permID', 'provID', 'trkSub'] as const;
 
 /**
- * Optical modes of ADES (recalled from memory of the ADES field description: CCD, CMOS, video, photographic,
- * encoder, photomultiplier, micrometer, meridian/transit, time-delay integration, unknown).
+ * ADES mode values for images (the MPC's ADES field-value list as quoted in public validation code: CCD, CMOS, video,
+ * photographic, encoder, photomultiplier, micrometer, meridian circle, time-delay integration, unknown). OCC
+ * (occultation timings) gives no RA/Dec of the object and is refused like radar.
  */
-const OPTICAL_MODES = new Set(['CCD', 'CMO', 'VID', 'PHO', 'ENC', 'PMT', 'MIC', 'MEA', 'TDI', 'UNK']);
+const OPTICAL_MODES = new Set(['CCD', 'CMO', 'VID', 'PHO', 'ENC', 'PMT', 'MIC', 'MER', 'TDI', 'UNK']);
 
 /**
- * ADES field names accepted in a column header (recalled from memory of the ADES 2017/2022 field lists). Fields
- * other than those Tocsin reads are accepted and ignored; a name outside this list is reported as unknown, since
- * it is most often a misspelling of a field we would need.
+ * ADES field names accepted in a column header: the element names of the IAU ADES 2022 schema (general.xsd of the
+ * ADES-Master repository, read for this list). Fields other than those Tocsin reads are accepted and ignored; a name
+ * outside this list is reported as unknown, since it is most often a misspelling of a field we would need.
  */
 const KNOWN_FIELDS = new Set([
   // identification
-  'permID', 'provID', 'artSat', 'trkSub', 'obsID', 'trkID',
-  // observation
+  'permID', 'provID', 'artSat', 'trkSub', 'obsID', 'obsSubID', 'trkID', 'trkMPC',
+  // observation and observer location
   'mode', 'stn', 'sys', 'ctr', 'pos1', 'pos2', 'pos3', 'vel1', 'vel2', 'vel3',
   'posCov11', 'posCov12', 'posCov13', 'posCov22', 'posCov23', 'posCov33', 'prog', 'obsTime', 'rmsTime',
-  // astrometry
+  // astrometry (optical, offset, occultation, radar)
   'ra', 'dec', 'raStar', 'decStar', 'obsCenter', 'deltaRA', 'deltaDec', 'dist', 'pa', 'rmsRA', 'rmsDec', 'rmsDist',
   'rmsPA', 'rmsCorr', 'delay', 'rmsDelay', 'doppler', 'rmsDoppler', 'astCat', 'com', 'frq', 'trx', 'rcv',
-  // photometry
-  'mag', 'rmsMag', 'band', 'photCat', 'photAp', 'nucMag', 'logSNR', 'seeing', 'exp', 'rmsFit', 'nStars', 'shapeOcc',
-  // reference and precision
-  'ref', 'disc', 'subFmt', 'subFrm', 'precTime', 'precRA', 'precDec', 'uncTime', 'notes', 'remarks', 'deprecated',
-  'localUse', 'orbProd', 'orbID', 'resRA', 'resDec', 'selAst', 'sigRA', 'sigDec', 'sigCorr', 'sigTime', 'biasRA',
-  'biasDec', 'biasTime', 'photProd', 'resMag', 'selPhot', 'sigMag', 'biasMag', 'photMod', 'fltr', 'ctrs',
+  // photometry and image
+  'mag', 'rmsMag', 'band', 'fltr', 'photCat', 'photAp', 'nucMag', 'logSNR', 'seeing', 'exp', 'rmsFit', 'nStars', 'shapeOcc',
+  // reference, precision, notes
+  'ref', 'disc', 'subFmt', 'subFrm', 'precTime', 'precRA', 'precDec', 'uncTime', 'notes', 'remarks', 'deprecated', 'localUse',
+  // residual records
+  'orbProd', 'orbID', 'resRA', 'resDec', 'selAst', 'sigRA', 'sigDec', 'sigCorr', 'sigTime', 'biasRA', 'biasDec', 'biasTime',
+  'photProd', 'resMag', 'selPhot', 'sigMag', 'biasMag', 'photMod', 'resDelay', 'selDelay', 'sigDelay', 'resDoppler',
+  'selDoppler', 'sigDoppler',
 ]);
+
+/** Radar measurement fields: a line with a value in one of them is a radar observation. */
+const RADAR_FIELDS = ['delay', 'doppler'] as const;
 
 /** Space-based or roving observer fields: the observer position would come from the line, which we do not support. */
 const OBSERVER_POSITION_FIELDS = ['sys', 'ctr', 'pos1', 'pos2', 'pos3'] as const;
@@ -345,8 +351,17 @@ function readDataLine(
   } else if (mode === 'RAD') {
     issue(lineNo, 'mode', 'Radar observations (mode RAD) are not supported: Tocsin fits optical astrometry only');
     return null;
+  } else if (mode === 'OCC') {
+    issue(lineNo, 'mode', 'Occultation timings (mode OCC) are not supported: Tocsin fits optical RA/Dec astrometry only');
+    return null;
   } else if (!OPTICAL_MODES.has(mode)) {
     bad('mode', `mode "${truncate(mode, 20)}" is not an optical ADES mode (${[...OPTICAL_MODES].join(', ')})`);
+  }
+  for (const f of RADAR_FIELDS) {
+    if (get(f) !== null) {
+      issue(lineNo, f, `Radar observations (${f}) are not supported: Tocsin fits optical astrometry only`);
+      return null;
+    }
   }
   for (const f of OBSERVER_POSITION_FIELDS) {
     if (get(f) !== null) {
@@ -395,6 +410,7 @@ function readDataLine(
     bad('rmsCorr', 'rmsCorr is given without both rmsRA and rmsDec');
   }
   const mag = number('mag', false);
+  if (mag !== null && !(mag >= -5 && mag <= 35)) bad('mag', `mag ${mag} is outside the ADES range [-5, 35]`);
 
   if (!ok || stn === null || obsTime === null || raDeg === null || decDeg === null || mode === null) return null;
   return {
