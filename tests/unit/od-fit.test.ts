@@ -4,6 +4,8 @@ import { GM_AU3_D2 } from '../../server/engine/constants';
 import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
 import { determineOrbit, FitAbortedError, OrbitDeterminationError } from '../../server/engine/od/fit';
+import { encounterUncertainty } from '../../server/engine/od/encounter';
+import { cholesky } from '../../server/engine/linalg/cholesky';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
 import { parseAdesPsv } from '../../server/engine/od/ades';
 import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
@@ -170,6 +172,43 @@ function stateChiSquare(fit: { positionAu: number[]; velocityAuD: number[]; cova
   const sol = solveNormal(cov, Float64Array.from(d), 6, false)!;
   return d.reduce((a, x, i) => a + x * sol.step[i], 0);
 }
+
+describe('encounter uncertainty (encounter.ts) against central differences', () => {
+  it(
+    'the linear 1-sigma of the closest distance and time match finite differences over the covariance square root',
+    () => {
+      // σ² = Σ_k (∂f/∂p · L_k)² for Γ = L Lᵀ (linear propagation; common practice, no source). The derivative along
+      // each column L_k is taken by central differences of the full n-body closest approach with steps ±0.1 L_k.
+      const truth = truthOrbit();
+      const obs = syntheticArc(truth, nightTimes(8, 2, 30), 0.5, 5);
+      const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) }, { skipEncounter: true });
+      const g = r.gravityOnly;
+      const arcEnd = Math.max(...obs.map((o) => o.obsTimeTdbDays));
+      const zero = Array.from({ length: 6 }, () => new Array(6).fill(0));
+      const base = { epochTdbDays: g.epochTdbDays, nonGrav: null, parameters: g.parameters, arcEndTdbDays: arcEnd };
+      const enc = encounterUncertainty({ ...base, positionAu: g.positionAu, velocityAuD: g.velocityAuD, covariance: g.covariance! })!;
+      const L = cholesky(Float64Array.from(g.covariance!.flat()), 6)!;
+      let varD = 0;
+      let varT = 0;
+      const eps = 0.1;
+      for (let k = 0; k < 6; k++) {
+        const at = (sgn: number) => {
+          const p = [...g.positionAu, ...g.velocityAuD].map((x, i) => x + sgn * eps * L[i * 6 + k]);
+          return encounterUncertainty({ ...base, positionAu: p.slice(0, 3) as Vec3, velocityAuD: p.slice(3) as Vec3, covariance: zero })!;
+        };
+        const plus = at(1);
+        const minus = at(-1);
+        varD += ((plus.distanceKm - minus.distanceKm) / (2 * eps)) ** 2;
+        varT += (((plus.closeApproachTdbDays - minus.closeApproachTdbDays) * 1440) / (2 * eps)) ** 2;
+      }
+      expect(enc.distanceSigmaKm / Math.sqrt(varD)).toBeGreaterThan(0.98);
+      expect(enc.distanceSigmaKm / Math.sqrt(varD)).toBeLessThan(1.02);
+      expect(enc.timeSigmaMin / Math.sqrt(varT)).toBeGreaterThan(0.98);
+      expect(enc.timeSigmaMin / Math.sqrt(varT)).toBeLessThan(1.02);
+    },
+    240_000,
+  );
+});
 
 describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   it(

@@ -10,10 +10,13 @@
  *    and the non-grav sensitivities (dynamics/variational.ts): Γ_t = Φ Γ Φᵀ (linear propagation).
  * 3. With ρ, u the Earth-relative position and velocity at the minimum (where ρ·u = 0):
  *      σ_distance = √(ρ̂ᵀ Γ_rr ρ̂)          (first-order change of the minimum distance is ρ̂·δr),
- *      σ_time     = √(uᵀ Γ_rr u) / |u|²     (the along-track displacement shifts the time of the minimum),
+ *      σ_time     = √(gᵀ Γ_t g) / (|u|² + ρ·a),  g = (u, ρ)   (the minimum is where f = ρ·u = 0; a first-order
+ *                   change δf = u·δr + ρ·δv moves it by −δf / ḟ, ḟ = |u|² + ρ·a with a the relative acceleration:
+ *                   the Sun's differential pull and the Earth–Moon attraction, point masses),
  *      largest positional 1-sigma = √λ_max(Γ_rr).
+ *    Checked against central differences of the full n-body closest approach (tests/unit/od-fit.test.ts).
  */
-import { AU_KM } from '../constants';
+import { AU_KM, DAY_S, GM_KM3_S2 } from '../constants';
 import { findCloseApproaches } from '../dynamics/approaches';
 import { propagate } from '../dynamics/propagate';
 import { defaultEphemeris } from '../dynamics/ephemeris-source';
@@ -90,38 +93,51 @@ export function encounterUncertainty(input: EncounterInput): EncounterUncertaint
     sensitivities: sens,
   });
   const phi = stm.samples[0].phi; // 6 x n
-  // Γ_rr (AU²) = Φ_r Γ Φ_rᵀ, rows 0..2 of Φ
-  const grr = new Float64Array(9);
-  for (let i = 0; i < 3; i++) {
-    for (let j = 0; j < 3; j++) {
+  // Γ_t = Φ Γ Φᵀ (6x6), converted to km and km/s
+  const scaleKm = [AU_KM, AU_KM, AU_KM, AU_KM / DAY_S, AU_KM / DAY_S, AU_KM / DAY_S];
+  const gt = new Float64Array(36);
+  for (let i = 0; i < 6; i++) {
+    for (let j = 0; j < 6; j++) {
       let s = 0;
       for (let k = 0; k < n; k++) {
         let t = 0;
         for (let l = 0; l < n; l++) t += input.covariance[k][l] * phi[j * n + l];
         s += phi[i * n + k] * t;
       }
-      grr[i * 3 + j] = s * AU_KM * AU_KM;
+      gt[i * 6 + j] = s * scaleKm[i] * scaleKm[j];
     }
   }
+  const quad6 = (a: readonly number[]) => {
+    let s = 0;
+    for (let i = 0; i < 6; i++) for (let j = 0; j < 6; j++) s += a[i] * gt[i * 6 + j] * a[j];
+    return Math.max(0, s);
+  };
   const rho = best.relPositionKm;
   const u = best.relVelocityKmS;
   const d = Math.hypot(rho[0], rho[1], rho[2]);
-  const quad = (a: Vec3) => {
-    let s = 0;
-    for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) s += a[i] * grr[i * 3 + j] * a[j];
-    return Math.max(0, s);
-  };
-  const rhoHat: Vec3 = [rho[0] / d, rho[1] / d, rho[2] / d];
-  const u2 = u[0] * u[0] + u[1] * u[1] + u[2] * u[2];
-  const timeSigmaS = u2 > 0 ? Math.sqrt(quad(u)) / u2 : 0;
-  const eig = jacobiEigenSymmetric(Float64Array.from(grr), 3);
+  // relative acceleration (km/s²): the Sun's differential pull plus the Earth–Moon system's attraction
+  const state = stm.samples[0].state;
+  const rObj: Vec3 = [state[0] * AU_KM, state[1] * AU_KM, state[2] * AU_KM];
+  const rEarth: Vec3 = [rObj[0] - rho[0], rObj[1] - rho[1], rObj[2] - rho[2]];
+  const muS = GM_KM3_S2.sun;
+  const muE = GM_KM3_S2.earth + GM_KM3_S2.moon;
+  const ro3 = Math.hypot(...rObj) ** 3;
+  const re3 = Math.hypot(...rEarth) ** 3;
+  const aRel = [0, 1, 2].map((i) => -muS * (rObj[i] / ro3 - rEarth[i] / re3) - (muE * rho[i]) / (d * d * d));
+  // at the minimum f = ρ·u = 0: δf = u·δr + ρ·δv, df/dt = |u|² + ρ·a, δt = −δf / (df/dt); δd = ρ̂·δr
+  const dfdt = u[0] * u[0] + u[1] * u[1] + u[2] * u[2] + rho[0] * aRel[0] + rho[1] * aRel[1] + rho[2] * aRel[2];
+  const timeSigmaS = dfdt > 0 ? Math.sqrt(quad6([u[0], u[1], u[2], rho[0], rho[1], rho[2]])) / dfdt : 0;
+  const distanceSigmaKm = Math.sqrt(quad6([rho[0] / d, rho[1] / d, rho[2] / d, 0, 0, 0]));
+  const grr = new Float64Array(9);
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) grr[i * 3 + j] = gt[i * 6 + j];
+  const eig = jacobiEigenSymmetric(grr, 3);
   const lamMax = Math.max(...Array.from(eig.values));
   return {
     body: best.body,
     closeApproachTdbDays: best.tdbDays,
     closeApproachUtc: utcFromTdbDays(best.tdbDays).utc,
     distanceKm: best.distanceKm,
-    distanceSigmaKm: Math.sqrt(quad(rhoHat)),
+    distanceSigmaKm,
     positionSigmaMaxKm: Math.sqrt(Math.max(0, lamMax)),
     timeSigmaMin: timeSigmaS / 60,
   };
