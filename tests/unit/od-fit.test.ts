@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { fitSettingsSchema, orbitDeterminationResultSchema, type Observatory, type OpticalObservation } from '../../shared/schemas/od';
+import { classifyOrbit } from '../../server/engine/classify';
 import { GM_AU3_D2 } from '../../server/engine/constants';
 import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
@@ -256,6 +257,10 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
     expect(Math.abs(g.elements!.eccentricity.value - 0.3) / g.elements!.eccentricity.sigma!).toBeLessThan(5);
     expect(Math.abs(g.elements!.inclinationDeg.value - 10) / g.elements!.inclinationDeg.sigma!).toBeLessThan(5);
     expect(g.unboundSignificance).toBeNull();
+    // sigma of e agrees with classify.ts's independent propagation (its own finite-difference gradient of e)
+    const cls = classifyOrbit({ positionAu: g.positionAu, velocityAuD: g.velocityAuD, covariance: { parameters: g.parameters, matrix: g.covariance! } });
+    expect(g.elements!.eccentricity.sigma! / cls.eccentricitySigma!).toBeCloseTo(1, 4);
+    expect(g.elements!.eccentricity.value).toBeCloseTo(cls.eccentricity, 12);
     expect(r.arc.stations).toEqual(['TQA', 'TQB']);
   });
 
