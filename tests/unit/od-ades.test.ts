@@ -75,7 +75,18 @@ describe('parseAdesPsv: well-formed files', () => {
     const r = parseAdesPsv(text);
     expect(r.issues).toEqual([]);
     expect(r.observations.map((o) => [o.line, o.stn, o.trkSub])).toEqual([[5, 'HSB', 'K1a'], [9, 'HSC', 'K1a']]);
-    expect(r.header.observatory.mpcCode).toBe('HSB'); // first value kept
+    expect(r.header.observatory.mpcCode).toBe('HSB; HSC'); // both blocks' values kept
+  });
+});
+
+describe('parseAdesPsv: header keywords that repeat', () => {
+  it('keeps every distinct value (several observers, several comment lines)', () => {
+    const r = parseAdesPsv(
+      ['# version=2022', '# observers', '! name B. Example', '! name C. Example', '# comment', '! line first', '! line second',
+        'provID|mode|stn|obsTime|ra|dec', 'X|CCD|HSA|2026-03-01T03:12:45Z|1|2'].join('\n'),
+    );
+    expect(r.issues).toEqual([]);
+    expect(r.header).toEqual({ observers: { name: 'B. Example; C. Example' }, comment: { line: 'first; second' } });
   });
 });
 

@@ -22,7 +22,8 @@ import type { AdesIssue, OpticalObservation } from '../../../shared/schemas/od';
 import { tdbDaysFromUtc } from '../time';
 
 export type AdesParseResult = {
-  /** Header groups: group name -> keyword -> value (keywords of repeated groups merged; first value kept). */
+  /** Header groups: group name -> keyword -> value (a repeated keyword, in one group or in later blocks, keeps every
+   * distinct value, joined with "; "). */
   header: Record<string, Record<string, string>>;
   /** The well-formed observations, in file order. */
   observations: OpticalObservation[];
@@ -207,7 +208,11 @@ export function parseAdesPsv(text: string): AdesParseResult {
         continue;
       }
       const g = header[group];
-      if (!(m[1] in g)) g[m[1]] = (m[2] ?? '').trim();
+      const value = (m[2] ?? '').trim();
+      // Repeated keywords (several observers, several comment lines, the same group in later blocks): the distinct
+      // values joined with "; ", so nothing is lost.
+      if (!(m[1] in g)) g[m[1]] = value;
+      else if (value !== '' && !g[m[1]].split('; ').includes(value)) g[m[1]] = g[m[1]] === '' ? value : `${g[m[1]]}; ${value}`;
       continue;
     }
 
