@@ -79,6 +79,20 @@ describe('parseAdesPsv: well-formed files', () => {
   });
 });
 
+describe('parseAdesPsv: leap seconds', () => {
+  it('an obsTime inside a real leap second (2016-12-31T23:59:60, IERS Bulletin C; METHODS.md §1.2) is read', () => {
+    const r = parseAdesPsv(
+      ['# version=2022', 'provID|mode|stn|obsTime|ra|dec',
+        'X|CCD|HSA|2016-12-31T23:59:59.5Z|1|2', 'X|CCD|HSA|2016-12-31T23:59:60.5Z|1|2', 'X|CCD|HSA|2017-01-01T00:00:00.5Z|1|2'].join('\n'),
+    );
+    expect(r.issues).toEqual([]);
+    const [a, b, c] = r.observations.map((o) => o.obsTimeTdbDays * 86400);
+    // one SI second apart each (the leap second is a real second of time)
+    expect(b - a).toBeCloseTo(1, 4);
+    expect(c - b).toBeCloseTo(1, 4);
+  });
+});
+
 describe('parseAdesPsv: header keywords that repeat', () => {
   it('keeps every distinct value (several observers, several comment lines)', () => {
     const r = parseAdesPsv(
