@@ -100,6 +100,11 @@ describe('queueing a fit', () => {
     expect(foreign.body.error.details.issues[0].path).toBe('initialSolutionId');
     const bad = await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { nonGravTerms: ['a4'] } });
     expect(bad.status).toBe(400);
+    // 30 February does not exist (Gregorian calendar): the epoch is refused when queued, not when the fit runs
+    const noDay = await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { epoch: 'TDB:2026-02-30T00:00:00' } });
+    expect(noDay.status).toBe(422);
+    expect(noDay.body.error.details.issues[0].path).toBe('epoch');
+    expect(srv.db.select().from(orbitFits).all()).toEqual([]);
   });
 
   it('who may: analysts and reviewers start fits; administrators read; communications and liaison see none', async () => {

@@ -9,6 +9,7 @@ import type { Db } from '../../db/client';
 import { orbitFits, orbitSolutions, trackedObjects, users, type OrbitFitRow } from '../../db/schema';
 import { conflict, notFound, unprocessable } from '../../errors';
 import { fitToSolutionInput } from '../../engine/od';
+import { EpochFormatError, parseEpoch, TimeScaleError } from '../../engine/time';
 import type { FitSettings, Observatory, OpticalObservation, OrbitDeterminationResult } from '../../../shared/schemas/od';
 import type { AdoptFitBody, FitJob } from '../../../shared/schemas/odApi';
 import type { JobEvents } from '../jobs/leaseRunner';
@@ -97,6 +98,15 @@ export function createFitService(db: Db, deps: { objects: ObjectService; astrome
      */
     create(objectId: number, settings: FitSettings, actorId: number | null, now = new Date()): FitJob {
       deps.objects.get(objectId);
+      if (settings.epoch !== null) {
+        // The engine reads the epoch when the fit runs; a date it cannot use is refused now, with the reason.
+        try {
+          parseEpoch(settings.epoch);
+        } catch (err) {
+          if (err instanceof EpochFormatError || err instanceof TimeScaleError) throw refused('epoch', err.message);
+          throw err;
+        }
+      }
       if (settings.initialSolutionId !== null) {
         const s = db.select({ objectId: orbitSolutions.objectId }).from(orbitSolutions).where(eq(orbitSolutions.id, settings.initialSolutionId)).get();
         if (!s || s.objectId !== objectId) throw refused('initialSolutionId', `Solution ${settings.initialSolutionId} is not a solution version of this object`);
