@@ -333,6 +333,9 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
     const run = (o: OpticalObservation[], s = settings) => () => determineOrbit({ observations: o, observatories: OBSERVATORIES, settings: s }, { skipEncounter: true });
     expect(run(obs.slice(0, 2))).toThrow(/at least 3 observations/);
     expect(run(obs.slice(0, 3))).toThrow(/at least 2 nights/);
+    // two sessions 8 h apart: two "nights" by the gap rule, but a 0.35-day arc
+    const short = syntheticArc(truth, [T0, T0 + 0.01, T0 + 0.34, T0 + 0.35], 0.5, 1);
+    expect(run(short)).toThrow(/arc is 8\.4 h; at least 12 h/);
     expect(run(obs.map((o, i) => (i === 4 ? { ...o, stn: 'ZZ9' } : o)))).toThrow(/unknown observatory code ZZ9/i);
     try {
       run(obs.map((o, i) => (i === 4 ? { ...o, stn: 'ZZ9' } : o)))();

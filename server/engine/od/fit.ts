@@ -105,8 +105,11 @@ export interface DetermineOrbitHooks {
 
 /** Observations closer in time than this belong to one night (common practice, no source). */
 export const NIGHT_GAP_DAYS = 0.25;
-/** Shortest arc accepted, days. */
-export const MIN_ARC_DAYS = 1;
+/**
+ * Shortest arc accepted, days: half a day, so two consecutive nights at one site always pass while two sessions a
+ * few hours apart (different longitudes, one UTC day) do not (common practice, no source).
+ */
+export const MIN_ARC_DAYS = 0.5;
 /** Outlier passes per fit before giving up on a changing set. */
 export const MAX_OUTLIER_PASSES = 15;
 /** Preliminary orbits tried, best-scored first, until the gravity-only fit converges. */
@@ -554,7 +557,7 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   const last = observations[order[order.length - 1]];
   const arcDays = last.obsTimeTdbDays - first.obsTimeTdbDays;
   if (arcDays < MIN_ARC_DAYS) {
-    throw new OrbitDeterminationError('ARC_TOO_SHORT', `the observed arc is ${(arcDays * 24).toFixed(1)} h; at least ${MIN_ARC_DAYS} day is needed`);
+    throw new OrbitDeterminationError('ARC_TOO_SHORT', `the observed arc is ${(arcDays * 24).toFixed(1)} h; at least ${MIN_ARC_DAYS * 24} h is needed`);
   }
   let epochTdbDays: number;
   if (settings.epoch) {
