@@ -166,6 +166,21 @@ describe('orbit determination in the browser', () => {
     expect(rejectedRows).toHaveLength(result.nonGrav!.residuals.filter((r) => r.status === 'rejected').length);
     for (const r of rejectedRows) expect(r).toContain('Rejected');
 
+    // exclude the worst-fitting observation straight from the residual table (for later fits; this one keeps it)
+    await page.getByLabel('Status', { exact: true }).selectOption('');
+    const excludeButton = table.getByRole('button', { name: /^Exclude .* from later fits$/ }).first();
+    const excludeLabel = (await excludeButton.getAttribute('aria-label'))!;
+    const excludedRow = table.locator('tbody tr').filter({ has: page.getByRole('button', { name: excludeLabel, exact: true }) });
+    const excludedLine = Number((await excludedRow.locator('td').nth(7).innerText()).trim());
+    await excludeButton.click();
+    await page.getByRole('dialog').getByLabel('Reason').fill('blended with a field star');
+    await page.getByRole('dialog').getByRole('button', { name: 'Exclude from fits' }).click();
+    await table.locator('tbody tr').filter({ hasText: '(excluded since)' }).nth(1).waitFor();
+    const afterExclusion = (await (await page.request.get(`${server.url}/api/objects/${objectId}/astrometry`)).json()) as { observations: { line: number; excluded: boolean; excludedReason: string | null }[] };
+    expect(afterExclusion.observations.filter((o) => o.excluded).map((o) => o.excludedReason).sort()).toEqual(['blended with a field star', 'trailed image']);
+    expect(afterExclusion.observations.find((o) => o.excludedReason === 'blended with a field star')!.line).toBe(excludedLine);
+    expect(await page.getByTestId('residual-plot-non-gravitational').locator('svg [data-panel="ra"] [data-status="excluded"]').count()).toBe(2);
+
     // adopt the non-gravitational fit: a reason is required, then the new version opens on the object page
     await page.getByRole('button', { name: 'Adopt a fit…' }).click();
     const dialog = page.getByRole('dialog');

@@ -7,11 +7,11 @@ import type { StoredObservation } from '../../../shared/schemas/odApi';
 import { useAstrometry, useExcludeObservation } from '../../api/od';
 import { useObject } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
-import { ConfirmDialog } from '../../components/ConfirmDialog';
 import { Button, ErrorState, LoadingState, Notice, PageHeader, SelectField, buttonClass, errorMessage } from '../../components/ui';
 import { formatUtc } from '../objects/format';
 import { odAccess } from '../fits/access';
 import { formatDec, formatObsTime, formatRa } from './format';
+import { ExcludeDialog } from './ExcludeDialog';
 import { UploadAstrometryForm } from './UploadAstrometryForm';
 
 const fmtRms = (v: number | null) => (v === null ? '—' : v.toFixed(2));
@@ -22,19 +22,12 @@ function ObservationTable({ objectId, observations, canExclude }: { objectId: nu
   const [batch, setBatch] = useState('');
   const [show, setShow] = useState<'all' | 'included' | 'excluded'>('all');
   const [target, setTarget] = useState<StoredObservation | null>(null);
-  const [reason, setReason] = useState('');
   const stations = useMemo(() => [...new Set(observations.map((o) => o.stn))].sort(), [observations]);
   const batches = useMemo(() => [...new Set(observations.map((o) => o.batchId))].sort((a, b) => a - b), [observations]);
   const rows = observations
     .filter((o) => (!station || o.stn === station) && (!batch || o.batchId === Number(batch)) && (show === 'all' || (show === 'excluded') === o.excluded))
     .sort((a, b) => a.obsTimeTdbDays - b.obsTimeTdbDays);
   const excludedCount = observations.filter((o) => o.excluded).length;
-
-  const close = () => {
-    setTarget(null);
-    setReason('');
-    exclude.reset();
-  };
 
   return (
     <section aria-labelledby="observations-heading">
@@ -61,7 +54,7 @@ function ObservationTable({ objectId, observations, canExclude }: { objectId: nu
           </SelectField>
         </div>
       </div>
-      {exclude.isError && target === null && <Notice tone="error" className="mb-3">{errorMessage(exclude.error)}</Notice>}
+      {exclude.isError && <Notice tone="error" className="mb-3">{errorMessage(exclude.error)}</Notice>}
       <div className="max-h-[36rem] overflow-auto rounded-lg border border-rule bg-white">
         <table className="w-full min-w-[60rem] text-left text-sm" data-testid="observation-table">
           <caption className="sr-only">Stored observations, in time order</caption>
@@ -110,20 +103,7 @@ function ObservationTable({ objectId, observations, canExclude }: { objectId: nu
         </table>
         {rows.length === 0 && <p className="p-4 text-ink-soft">No observation matches the filters.</p>}
       </div>
-      <ConfirmDialog
-        open={target !== null}
-        title={target ? `Exclude ${target.stn} ${formatObsTime(target.obsTime)}?` : ''}
-        confirmLabel="Exclude from fits"
-        busy={exclude.isPending}
-        error={exclude.error}
-        confirmDisabled={reason.trim().length < 3}
-        onCancel={close}
-        onConfirm={() => target && exclude.mutate({ obsId: target.id, excluded: true, reason: reason.trim() }, { onSuccess: close })}
-      >
-        <p>The observation stays stored and is shown greyed; every later fit leaves it out.</p>
-        <label htmlFor="exclude-reason" className="block font-medium text-ink">Reason</label>
-        <textarea id="exclude-reason" rows={3} className="block w-full rounded-md border border-rule p-2 text-ink" value={reason} onChange={(e) => setReason(e.target.value)} placeholder="e.g. trailed image, blended with a star" />
-      </ConfirmDialog>
+      <ExcludeDialog objectId={objectId} target={target} onClose={() => setTarget(null)} />
     </section>
   );
 }

@@ -31,14 +31,13 @@ function downloadJson(fit: FitJob) {
  * Residuals of observations an analyst has excluded since the fit (greyed in the plots and the table): the fit's
  * input order maps residual.index to a stored observation id (observationIds).
  */
-function useExcludedLookup(fit: FitJob | undefined, enabled: boolean): ((r: Residual) => boolean) | undefined {
+function useExcludedLookup(fit: FitJob | undefined, enabled: boolean): { excluded?: (r: Residual) => boolean; excludedIds: Set<number> } {
   const astrometry = useAstrometry(fit?.objectId ?? 0, { enabled: enabled && fit !== undefined && fit.result !== null });
   return useMemo(() => {
-    if (!fit || !astrometry.data) return undefined;
-    const excludedIds = new Set(astrometry.data.observations.filter((o) => o.excluded).map((o) => o.id));
-    if (excludedIds.size === 0) return undefined;
+    const excludedIds = new Set((astrometry.data?.observations ?? []).filter((o) => o.excluded).map((o) => o.id));
+    if (!fit || excludedIds.size === 0) return { excludedIds };
     const ids = fit.observationIds ?? [];
-    return (r: Residual) => excludedIds.has(ids[r.index] ?? -1);
+    return { excluded: (r: Residual) => excludedIds.has(ids[r.index] ?? -1), excludedIds };
   }, [fit, astrometry.data]);
 }
 
@@ -48,7 +47,7 @@ export function FitPage() {
   const query = useFit(id);
   const cancel = useCancelFit(id);
   const [adopting, setAdopting] = useState(false);
-  const excluded = useExcludedLookup(query.data, access.readAstrometry);
+  const { excluded, excludedIds } = useExcludedLookup(query.data, access.readAstrometry);
   if (query.isPending) return <LoadingState label="Loading the fit…" />;
   if (query.isError) return <ErrorState error={query.error} onRetry={() => void query.refetch()} />;
   const fit = query.data;
@@ -120,7 +119,12 @@ export function FitPage() {
             {result.nonGrav && result.comparison && <ComparisonView gravityOnly={result.gravityOnly} nonGrav={result.nonGrav} comparison={result.comparison} />}
             <ResidualPlots result={result} excluded={excluded} fileStem={`tocsin-fit-${fit.id}`} />
             <FitSummary fits={fits} />
-            <ResidualTable fits={fits} excluded={excluded} fileStem={`tocsin-fit-${fit.id}`} />
+            <ResidualTable
+              fits={fits}
+              excluded={excluded}
+              fileStem={`tocsin-fit-${fit.id}`}
+              exclusion={access.exclude ? { objectId: fit.objectId, observationIds: fit.observationIds ?? [], excludedIds } : undefined}
+            />
             <section aria-labelledby="fit-provenance-heading">
               <h2 id="fit-provenance-heading" className="mb-2 text-lg font-semibold">Provenance</h2>
               <dl className="grid grid-cols-[max-content_1fr] gap-x-4 gap-y-1 text-sm">

@@ -4,6 +4,7 @@
 import { useState } from 'react';
 import type { FitResult, Residual } from '../../../shared/schemas/od';
 import { SelectField } from '../../components/ui';
+import { ExcludeDialog, type ExcludeTarget } from '../astrometry/ExcludeDialog';
 import { formatObsTime } from '../astrometry/format';
 import { FIT_LABELS, residualsCsv } from './format';
 
@@ -29,7 +30,11 @@ function downloadCsv(text: string, name: string) {
   setTimeout(() => URL.revokeObjectURL(url), 1000);
 }
 
-export function ResidualTable({ fits, excluded, fileStem }: { fits: FitResult[]; excluded?: (r: Residual) => boolean; fileStem: string }) {
+/** When the user may exclude observations: the fit's residual.index -> stored observation id, and those excluded now. */
+export type ResidualExclusion = { objectId: number; observationIds: number[]; excludedIds: Set<number> };
+
+export function ResidualTable({ fits, excluded, fileStem, exclusion }: { fits: FitResult[]; excluded?: (r: Residual) => boolean; fileStem: string; exclusion?: ResidualExclusion }) {
+  const [target, setTarget] = useState<ExcludeTarget | null>(null);
   const [which, setWhich] = useState(fits[fits.length - 1].label);
   const [station, setStation] = useState('');
   const [status, setStatus] = useState('');
@@ -89,6 +94,7 @@ export function ResidualTable({ fits, excluded, fileStem }: { fits: FitResult[];
               ))}
               <th scope="col" className="px-3 py-2">σ RA, σ Dec (″)</th>
               <th scope="col" className="px-3 py-2">Line</th>
+              {exclusion && <th scope="col" className="px-3 py-2"><span className="sr-only">Exclude</span></th>}
             </tr>
           </thead>
           <tbody>
@@ -107,6 +113,19 @@ export function ResidualTable({ fits, excluded, fileStem }: { fits: FitResult[];
                   </td>
                   <td className="px-3 py-1.5">{r.sigmaRaArcsec.toFixed(2)}, {r.sigmaDecArcsec.toFixed(2)}</td>
                   <td className="px-3 py-1.5">{r.line}</td>
+                  {exclusion && (
+                    <td className="px-3 py-1.5">
+                      {(() => {
+                        const id = exclusion.observationIds[r.index];
+                        if (id === undefined || exclusion.excludedIds.has(id)) return null;
+                        return (
+                          <button type="button" className="text-xs text-accent-700 underline" aria-label={`Exclude ${r.stn} ${formatObsTime(r.obsTime)} from later fits`} onClick={() => setTarget({ id, stn: r.stn, obsTime: r.obsTime })}>
+                            Exclude
+                          </button>
+                        );
+                      })()}
+                    </td>
+                  )}
                 </tr>
               );
             })}
@@ -114,6 +133,7 @@ export function ResidualTable({ fits, excluded, fileStem }: { fits: FitResult[];
         </table>
         {rows.length === 0 && <p className="p-4 text-ink-soft">No residual matches the filters.</p>}
       </div>
+      {exclusion && <ExcludeDialog objectId={exclusion.objectId} target={target} onClose={() => setTarget(null)} note="This fit keeps it: start a new fit to see the effect." />}
     </section>
   );
 }
