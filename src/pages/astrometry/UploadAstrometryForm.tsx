@@ -82,8 +82,13 @@ export function UploadAstrometryForm({ objectId }: { objectId: number }) {
 
       {upload.isError && (
         <div className="mt-4" data-testid="ades-refused">
-          <Notice tone="error" title="The file was refused; nothing was stored">
-            <p>{errorMessage(upload.error)}</p>
+          <Notice tone="error" title="The file was refused">
+            {/* the server's message lists the issues too: with the table below, a count is enough */}
+            <p>
+              {issues.length > 0
+                ? `${issues.length} problem${issues.length === 1 ? '' : 's'} found; nothing was stored. Correct the lines below and upload the whole file again.`
+                : errorMessage(upload.error)}
+            </p>
           </Notice>
           {issues.length > 0 && (
             <div className="mt-3 max-h-80 overflow-auto rounded-md border border-danger-200">
