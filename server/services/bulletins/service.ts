@@ -3,7 +3,7 @@
 // No Express here. Every change is one synchronous better-sqlite3 transaction whose write is conditional on the
 // state (and revision) that was read, so concurrent requests cannot both succeed (e.g. two approvals make one
 // version: the second finds the state changed and gets 409).
-import { and, asc, desc, eq, inArray, type SQL } from 'drizzle-orm';
+import { and, asc, eq, inArray, type SQL } from 'drizzle-orm';
 import { bulletinDocumentSchema, EMPTY_DOCUMENT, linkedFigures, referencedRunIds, type BulletinDocument } from '../../../shared/bulletins/document';
 import {
   availableActions,
@@ -29,10 +29,10 @@ import {
 } from '../../../shared/schemas/bulletins';
 import type { z } from 'zod';
 import type { Db } from '../../db/client';
-import { assessmentRuns, bulletinEvents, bulletins, bulletinVersions, staleFigureConfirmations, trackedObjects, users, type BulletinRow, type BulletinVersionRow } from '../../db/schema';
+import { assessmentRuns, bulletinEvents, bulletins, bulletinVersions, staleFigureConfirmations, trackedObjects, type BulletinRow, type BulletinVersionRow } from '../../db/schema';
 import { conflict, forbidden, HttpError, notFound, unprocessable } from '../../errors';
 import { canonicalJson, sha256Hex } from './canonical';
-import { saveDraftRevision } from '../drafts';
+import { eventOut, eventRows, newestFirst, saveDraftRevision, userRef, type Reader, type Tx } from '../drafts';
 import { diffVersions } from './diff';
 import { figureStatuses, loadRuns, snapshotFigures } from './runFigures';
 
@@ -42,20 +42,11 @@ export interface Actor {
   name: string;
 }
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-type Reader = Pick<Db, 'select'>;
-
 const iso = (d: Date) => d.toISOString();
 
 /** Bulletin numbers: "BUL-0001" from the row id (unique, never reused). */
 export function bulletinNumber(id: number): string {
   return `BUL-${String(id).padStart(4, '0')}`;
-}
-
-function userRef(db: Reader, id: number | null): { id: number; name: string } | null {
-  if (id === null) return null;
-  const u = db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, id)).get();
-  return u ?? { id, name: '' };
 }
 
 /** Which runs a document may refer to: existing runs of the bulletin's object (422 naming the first that is not). */
@@ -99,23 +90,7 @@ export function createBulletinService(db: Db) {
   }
 
   function events(bulletinId: number, reader: Reader = db): BulletinEvent[] {
-    return reader
-      .select({ e: bulletinEvents, actorName: users.name })
-      .from(bulletinEvents)
-      .leftJoin(users, eq(users.id, bulletinEvents.actorId))
-      .where(eq(bulletinEvents.bulletinId, bulletinId))
-      .orderBy(asc(bulletinEvents.id))
-      .all()
-      .map(({ e, actorName }) => ({
-        id: e.id,
-        action: e.action,
-        fromState: e.fromState,
-        toState: e.toState,
-        version: e.version,
-        actor: e.actorId !== null ? { id: e.actorId, name: actorName ?? '' } : null,
-        comment: e.comment,
-        createdAt: iso(e.createdAt),
-      }));
+    return eventRows(reader, bulletinEvents, bulletinEvents.bulletinId, bulletinId).map(({ e, actorName }) => eventOut(e, actorName));
   }
 
   function detail(r: BulletinRow, actor: Actor, reader: Reader = db): Bulletin {
@@ -186,13 +161,7 @@ export function createBulletinService(db: Db) {
       const where: SQL[] = [];
       if (query.objectId !== undefined) where.push(eq(bulletins.objectId, query.objectId));
       if (query.state !== undefined) where.push(eq(bulletins.state, query.state));
-      const rows = db
-        .select()
-        .from(bulletins)
-        .where(where.length ? and(...where) : undefined)
-        .orderBy(desc(bulletins.updatedAt), desc(bulletins.id))
-        .all();
-      return { bulletins: rows.map((r) => summary(r)) };
+      return { bulletins: newestFirst(db, bulletins, where).map((r) => summary(r)) };
     },
 
     get(id: number, actor: Actor): Bulletin {

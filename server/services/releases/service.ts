@@ -29,13 +29,10 @@ import { bulletins, bulletinVersions, releaseEvents, releases, releaseVersions, 
 import { conflict, forbidden, notFound, unprocessable } from '../../errors';
 import { canonicalJson, sha256Hex } from '../bulletins/canonical';
 import type { Actor } from '../bulletins/service';
-import { saveDraftRevision } from '../drafts';
+import { eventOut, eventRows, newestFirst, saveDraftRevision, userRef, type Reader, type Tx } from '../drafts';
 import type { MailService } from '../mail';
 import { initialReleaseDocument, releaseDocumentProblems } from './document';
 import { pressMail } from './pressMail';
-
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-type Reader = Pick<Db, 'select'>;
 
 const iso = (d: Date) => d.toISOString();
 
@@ -63,12 +60,6 @@ export function initialSummary(designation: string, statements: readonly { quant
   if (!ip) return '';
   const odds = ip.text.replace(/( \(|, that is).*$/, '');
   return `${designation}: chance of impact ${odds}.`;
-}
-
-function userRef(db: Reader, id: number | null): { id: number; name: string } | null {
-  if (id === null) return null;
-  const u = db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, id)).get();
-  return u ?? { id, name: '' };
 }
 
 /** What a locked version holds (hashed as canonical JSON). */
@@ -133,24 +124,7 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
   }
 
   function events(releaseId: number, reader: Reader = db): ReleaseEvent[] {
-    return reader
-      .select({ e: releaseEvents, actorName: users.name })
-      .from(releaseEvents)
-      .leftJoin(users, eq(users.id, releaseEvents.actorId))
-      .where(eq(releaseEvents.releaseId, releaseId))
-      .orderBy(asc(releaseEvents.id))
-      .all()
-      .map(({ e, actorName }) => ({
-        id: e.id,
-        action: e.action,
-        fromState: e.fromState,
-        toState: e.toState,
-        version: e.version,
-        actor: e.actorId !== null ? { id: e.actorId, name: actorName ?? '' } : null,
-        comment: e.comment,
-        publishAt: e.publishAt ? iso(e.publishAt) : null,
-        createdAt: iso(e.createdAt),
-      }));
+    return eventRows(reader, releaseEvents, releaseEvents.releaseId, releaseId).map(({ e, actorName }) => ({ ...eventOut(e, actorName), publishAt: e.publishAt ? iso(e.publishAt) : null }));
   }
 
   function figuresOf(r: ReleaseRow): FigureSnapshot[] {
@@ -304,13 +278,7 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
     list(query: { state?: ReleaseState }): ReleaseListResponse {
       const where: SQL[] = [];
       if (query.state !== undefined) where.push(eq(releases.state, query.state));
-      const rows = db
-        .select()
-        .from(releases)
-        .where(where.length ? and(...where) : undefined)
-        .orderBy(desc(releases.updatedAt), desc(releases.id))
-        .all();
-      return { releases: rows.map((r) => summary(r)) };
+      return { releases: newestFirst(db, releases, where).map((r) => summary(r)) };
     },
 
     get(id: number, actor: Actor): Release {
