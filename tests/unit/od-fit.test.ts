@@ -10,10 +10,10 @@ import { cholesky } from '../../server/engine/linalg/cholesky';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
 import { parseAdesPsv } from '../../server/engine/od/ades';
 import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
-import { fitToSolutionInput } from '../../server/engine/od/solutionInput';
+import { fitToSolutionInput, jdText } from '../../server/engine/od/solutionInput';
 import { chiSquareCdf, kolmogorovSmirnov } from '../../server/engine/od/statistics';
 import { RandomStream } from '../../server/engine/risk/random';
-import { utcFromTdbDays } from '../../server/engine/time';
+import { parseEpoch, utcFromTdbDays } from '../../server/engine/time';
 import { elementsToState } from '../../server/engine/twobody';
 import type { Vec3 } from '../../server/engine/vec';
 
@@ -173,6 +173,17 @@ function stateChiSquare(fit: { positionAu: number[]; velocityAuD: number[]; cova
   const sol = solveNormal(cov, Float64Array.from(d), 6, false)!;
   return d.reduce((a, x, i) => a + x * sol.step[i], 0);
 }
+
+describe('fitToSolutionInput epoch text', () => {
+  it('writes "JD:" with the day and fraction separately and reads back to the same TDB instant', () => {
+    expect(jdText(0)).toBe('JD:2451545.000000000000');
+    expect(jdText(-0.25)).toBe('JD:2451544.750000000000');
+    expect(jdText(10950.5)).toBe('JD:2462495.500000000000');
+    for (const t of [10950.123456789, -3650.987654321, 9999.9999999999995]) {
+      expect(parseEpoch(jdText(t)).tdbDays).toBeCloseTo(t, 10);
+    }
+  });
+});
 
 describe('encounter uncertainty (encounter.ts) against central differences', () => {
   it(
