@@ -112,8 +112,8 @@ describe('demo objects', () => {
     // non-grav: absent in version 1, estimated in version 2 with the file's σ
     const a1 = cmp.nonGrav.find((r) => r.key === 'a1')!;
     expect(a1.a).toEqual({ value: null, sigma: null });
-    expect(a1.b.value).toBe(3.2e-8);
-    expect(a1.b.sigma! / 7.0e-9).toBeCloseTo(1, 6);
+    expect(a1.b.value).toBe(1.6e-7);
+    expect(a1.b.sigma! / 3.5e-8).toBeCloseTo(1, 6);
     // unbound significance S = (e − 1)/σ_e drops with the wider σ but stays far above 3
     const sa = cmp.a.classification.unboundSignificance!;
     const sb = cmp.b.classification.unboundSignificance!;

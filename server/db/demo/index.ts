@@ -25,11 +25,11 @@ export const DEMO_OBJECTS: DemoObject[] = [
       name: 'Vaskir',
       kind: 'unbound',
       watch: true,
-      notes: 'Interstellar visitor found inbound in November 2026. Version 2 adds radial and transverse non-gravitational terms.',
+      notes: 'Interstellar visitor found inbound in June 2026. Version 2 adds radial and transverse non-gravitational terms.',
     },
     solutions: [
-      { file: 'hso-26-u1.v1.json', fit: { observationArcDays: 41, observationCount: 612, fitRmsArcsec: 0.61, remark: 'Gravity-only fit' } },
-      { file: 'hso-26-u1.v2.json', fit: { observationArcDays: 41, observationCount: 612, fitRmsArcsec: 0.38, remark: 'With A1 and A2: better residuals, wider uncertainty' } },
+      { file: 'hso-26-u1.v1.json', fit: { observationArcDays: 128, observationCount: 193, fitRmsArcsec: 0.24, remark: 'Gravity-only fit' } },
+      { file: 'hso-26-u1.v2.json', fit: { observationArcDays: 128, observationCount: 193, fitRmsArcsec: 0.21, remark: 'With A1 and A2: better residuals, wider uncertainty' } },
     ],
   },
   {
