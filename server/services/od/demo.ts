@@ -23,8 +23,12 @@ export const DEMO_ASTROMETRY_FILE = path.join(DEMO_DIR, 'hso-26-u1.psv');
 /** The solution the arc was made from names the object. */
 const DEMO_SOLUTION_FILE = path.join(DEMO_DIR, 'hso-26-u1.v2.json');
 
-/** Settings of the demo fit: gravity-only and with the radial and transverse terms, compared. */
-export const DEMO_FIT_SETTINGS = fitSettingsSchema.parse({ nonGravTerms: ['a1', 'a2'] });
+/**
+ * Settings of the demo fit: gravity-only and with the radial and transverse terms, compared, under the
+ * inverse-square law of version 2 (the arc was made with it; the water-ice g(r) all but vanishes beyond 3 AU, where
+ * most of the arc lies).
+ */
+export const DEMO_FIT_SETTINGS = fitSettingsSchema.parse({ nonGravTerms: ['a1', 'a2'], nonGravLaw: 'inverse-square' });
 
 export function demoAstrometryDesignation(): string {
   return (JSON.parse(fs.readFileSync(DEMO_SOLUTION_FILE, 'utf8')) as { designation: string }).designation;
