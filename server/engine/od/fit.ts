@@ -312,12 +312,14 @@ function runFit(
     if (lsq.evaluation) params = lsq.params;
     if (lsq.status === 'failed' || !lsq.covariance || !lsq.evaluation) break;
     chi = observationChiSquares(lsq.evaluation.residuals, lsq.evaluation.partials!, arc.obsCovariance, lsq.covariance, used, n);
-    if (!settings.rejectOutliers || pass === MAX_OUTLIER_PASSES) {
-      if (settings.rejectOutliers) warnings.push(`${label}: the set of used observations still changed after ${MAX_OUTLIER_PASSES} outlier passes`);
-      break;
-    }
+    // outliers are judged on converged fits only (the residuals of a diverging iteration say nothing)
+    if (!settings.rejectOutliers || lsq.status !== 'converged') break;
     const decision = outlierPass(chi.chiSquare, chi.judged, used, arc.locked);
     if (decision.reject.length === 0 && decision.recover.length === 0) break;
+    if (pass === MAX_OUTLIER_PASSES) {
+      warnings.push(`${label}: the set of used observations still changed after ${MAX_OUTLIER_PASSES} outlier passes`);
+      break;
+    }
     const next = Uint8Array.from(used);
     for (const i of decision.reject) next[i] = 0;
     for (const i of decision.recover) next[i] = 1;
