@@ -16,20 +16,22 @@ export function AdoptDialog({ fit, result, open, onClose }: { fit: FitJob; resul
   const choices = [result.gravityOnly, ...(result.nonGrav ? [result.nonGrav] : [])].filter((f) => f.status !== 'failed');
   const [which, setWhich] = useState<AdoptFitBody['which'] | null>(choices.length === 1 ? choices[0].label : null);
   const [reason, setReason] = useState('');
-  const [error, setError] = useState<string | null>(null);
+  const [errors, setErrors] = useState<{ which?: string; reason?: string }>({});
   const serverField = fieldErrors(adopt.error).reason;
 
   const confirm = () => {
     const parsed = adoptFitBodySchema.safeParse({ which, reason });
     if (!parsed.success) {
-      setError(which === null ? 'Choose which fit to adopt.' : (parsed.error.issues.find((i) => i.path[0] === 'reason')?.message ?? parsed.error.issues[0].message));
+      const reasonIssue = parsed.error.issues.find((i) => i.path[0] === 'reason');
+      setErrors({ which: which === null ? 'Choose which fit to adopt.' : undefined, reason: reasonIssue?.message });
       return;
     }
-    setError(null);
+    setErrors({});
     adopt.mutate(parsed.data, {
       onSuccess: ({ version }) => navigate(`/objects/${fit.objectId}?version=${version}`),
     });
   };
+  const reasonError = errors.reason ?? serverField;
 
   return (
     <ConfirmDialog
@@ -45,6 +47,7 @@ export function AdoptDialog({ fit, result, open, onClose }: { fit: FitJob; resul
       onConfirm={confirm}
     >
       <p>The chosen fit becomes the next solution version of {fit.designation}, with your reason recorded; runs can then use it.</p>
+      {result.comparison && <p className="border-l-2 border-accent-700 pl-2 text-ink">{result.comparison.verdict}</p>}
       <fieldset>
         <legend className="mb-1 font-medium text-ink">Which fit</legend>
         {choices.map((f) => (
@@ -58,6 +61,7 @@ export function AdoptDialog({ fit, result, open, onClose }: { fit: FitJob; resul
             </span>
           </label>
         ))}
+        {errors.which && <p className="mt-1 font-medium text-danger-700">{errors.which}</p>}
       </fieldset>
       <div>
         <label htmlFor="adopt-reason" className="mb-1 block font-medium text-ink">Reason</label>
@@ -65,12 +69,12 @@ export function AdoptDialog({ fit, result, open, onClose }: { fit: FitJob; resul
           id="adopt-reason"
           rows={3}
           className="block w-full rounded-md border border-rule p-2 text-ink aria-[invalid=true]:border-danger-700"
-          aria-invalid={error || serverField ? true : undefined}
+          aria-invalid={reasonError ? true : undefined}
           value={reason}
           onChange={(e) => setReason(e.target.value)}
           placeholder="e.g. A2 at 6 sigma and the gravity-only residuals curve"
         />
-        {(error || serverField) && <p className="mt-1 font-medium text-danger-700">{error ?? serverField}</p>}
+        {reasonError && <p className="mt-1 font-medium text-danger-700">{reasonError}</p>}
       </div>
     </ConfirmDialog>
   );
