@@ -129,6 +129,10 @@ describe('compareFits (METHODS §9.2: Δχ², likelihood-ratio p-value, A_k/σ, 
     const tp = cmp.elementSigmas.find((e) => e.element === 'perihelionTimeTdbDays')!;
     expect(tp.ratio).toBeCloseTo(3, 10);
     expect(cmp.verdict).toMatch(/non-gravitational fit is favoured/);
+    // with encounter predictions, the verdict states how their uncertainty changes
+    const enc = (sigmaKm: number) => ({ body: 'earth', closeApproachTdbDays: 12000, closeApproachUtc: '2032-11-08T12:00:00.000Z', distanceKm: 5e6, distanceSigmaKm: sigmaKm, positionSigmaMaxKm: 3 * sigmaKm, timeSigmaMin: 2 });
+    const withEnc = compareFits({ ...g, encounter: enc(120) }, { ...ng, encounter: enc(2400) }, ['a2'], { gravityOnly: new Float64Array(40).fill(3), nonGrav: new Float64Array(40).fill(1) });
+    expect(withEnc.verdict).toMatch(/2032-11-08: distance 1-sigma 120 km gravity-only, 2400 km with A2/);
   });
 
   it('a small Δχ² keeps the gravity-only fit', () => {

@@ -6,6 +6,8 @@
  *   two-sided Gaussian sigma (statistics.ts);
  * - |A_k|/σ_k (detections are usually quoted at S/N ≳ 3; Farnocchia et al. 2013 [M via METHODS §9.2]);
  * - the 1-sigma of every element in both fits and their ratio (the added parameters widen them, METHODS §9.2);
+ * - the encounter uncertainty of both fits, when they predict the same closest Earth approach, appended to the
+ *   verdict (issue 8 item 5: how the predicted encounter uncertainty changes);
  * - a residual trend test for each fit: the normalised residuals (RA·cos δ / σ and δ / σ) of the used
  *   observations are fitted with a quadratic in time (time scaled to [−1, 1] over the arc); the trend is the
  *   slope + curvature, tested against the offset-only model with an F-test
@@ -180,6 +182,13 @@ export function compareFits(
     verdict =
       `The gravity-only fit is adequate: adding ${termsText} lowers chi-square by only ${fmt(delta)} (${fmt(significanceSigma)} sigma) and no A_k reaches 3 times its uncertainty; ` +
       `the non-gravitational fit would only widen the uncertainties${widen !== null ? ` (up to ${fmt(widen)} times)` : ''}.`;
+  }
+  const eg = gravity.encounter;
+  const en = nonGrav.encounter;
+  if (eg && en && Math.abs(eg.closeApproachTdbDays - en.closeApproachTdbDays) < 30) {
+    verdict +=
+      ` Closest Earth approach ${en.closeApproachUtc.slice(0, 10)}: distance 1-sigma ${fmt(eg.distanceSigmaKm)} km gravity-only, ` +
+      `${fmt(en.distanceSigmaKm)} km with ${termsText} (time 1-sigma ${fmt(eg.timeSigmaMin)} and ${fmt(en.timeSigmaMin)} min).`;
   }
   return {
     addedParameters: [...terms],
