@@ -1,7 +1,10 @@
 /**
- * The parts of the chunk samplers of the Chebyshev cache (chebyshev.ts) that VSOP87 (vsop87.ts) and ELP/MPP02
- * (elpmpp02.ts) share. Both flatten their series into segments, one per (variable L/B/R, power of time), sum
- * every segment's terms at the n node offsets of K consecutive granules into acc[s·K·n + g·n + k], and rotate each
+ * What the two analytic series, VSOP87 (vsop87.ts) and ELP/MPP02 (elpmpp02.ts), share: the packed layout (per
+ * variable L/B/R, per power α of time: rows of numbers, one row a periodic term), the sum over powers
+ * Σ_α t^α S_α(t) with its derivative, and the parts of the chunk samplers of the Chebyshev cache (chebyshev.ts).
+ *
+ * Chunk samplers: both flatten their series into segments, one per (variable L/B/R, power of time), sum every
+ * segment's terms at the n node offsets of K consecutive granules into acc[s·K·n + g·n + k], and rotate each
  * term from the granule centre to a node through a per-term table of cos/sin(rate·dt_k). The term loop itself
  * differs (linear phases in VSOP87, quartic phases with a second-order correction in ELP/MPP02) and stays in each.
  */
@@ -11,6 +14,65 @@ export interface SeriesSegments {
   segStart: Int32Array;
   segVar: Int8Array;
   segPow: Int8Array;
+}
+
+/** One variable's terms per power α of time: rows of `stride` numbers each. */
+export type PackedVariable = Float64Array[];
+
+/**
+ * Pack one variable of the astronomia data ({ "0": rows, "1": rows, … }, rows of up to `stride` numbers; missing
+ * trailing numbers are 0) per power. `what` names the data in the error for a gap in the powers.
+ */
+export function packVariable(v: Record<string, number[][]>, stride: number, what: string): PackedVariable {
+  const powers = Object.keys(v)
+    .map(Number)
+    .sort((a, b) => a - b);
+  const out: PackedVariable = [];
+  for (const p of powers) {
+    if (p !== out.length) throw new Error(`${what} data: missing power ${out.length}`);
+    const rows = v[String(p)];
+    const arr = new Float64Array(rows.length * stride);
+    rows.forEach((r, i) => {
+      for (let j = 0; j < stride; j++) arr[stride * i + j] = r[j] ?? 0;
+    });
+    out.push(arr);
+  }
+  return out;
+}
+
+const SD = new Float64Array(2);
+
+/**
+ * Σ_α t^α S_α and its t-derivative Σ_α (α t^(α−1) S_α + t^α dS_α/dt) into out[k], out[k + 1]; `sums(arr, sd)`
+ * writes S_α and dS_α/dt of the terms `arr` of power α at t into sd[0], sd[1].
+ */
+export function powerSeriesInto(v: PackedVariable, t: number, out: Float64Array, k: number, sums: (arr: Float64Array, sd: Float64Array) => void): void {
+  let value = 0;
+  let deriv = 0;
+  let tPow = 1; // t^α
+  let tPowM1 = 0; // α·t^(α−1)
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    sums(v[alpha], SD);
+    const s = SD[0];
+    const ds = SD[1];
+    value += tPow * s;
+    deriv += tPowM1 * s + tPow * ds;
+    tPowM1 = (alpha + 1) * tPow;
+    tPow *= t;
+  }
+  out[k] = value;
+  out[k + 1] = deriv;
+}
+
+/** Σ_α t^α S_α without the derivative; `sum(arr)` is S_α of the terms `arr` of power α at t. */
+export function powerSeriesValue(v: PackedVariable, t: number, sum: (arr: Float64Array) => number): number {
+  let value = 0;
+  let tPow = 1;
+  for (let alpha = 0; alpha < v.length; alpha++) {
+    value += tPow * sum(v[alpha]);
+    tPow *= t;
+  }
+  return value;
 }
 
 /**

@@ -14,37 +14,19 @@
  * is neglected; it is six orders below the velocity accuracy of the theory.
  */
 import elp from 'astronomia/data/elpMppDe';
-import { combineSegments, flattenSeries, nodeRotationTable, seriesTermCount, type SeriesSegments } from './chunk';
+import { combineSegments, flattenSeries, nodeRotationTable, packVariable, powerSeriesInto, powerSeriesValue, seriesTermCount, type PackedVariable, type SeriesSegments } from './chunk';
 
 const DAYS_PER_CENTURY = 36_525;
 const ARCSEC_RAD = Math.PI / (180 * 3600);
 
-type PackedVariable = Float64Array[]; // per power of T: rows of 6 [A, φ0..φ4]
-
-function packVariable(v: Record<string, number[][]>): PackedVariable {
-  const powers = Object.keys(v)
-    .map(Number)
-    .sort((a, b) => a - b);
-  const out: PackedVariable = [];
-  for (const p of powers) {
-    if (p !== out.length) throw new Error(`ELP data: missing power ${out.length}`);
-    const rows = v[String(p)];
-    const arr = new Float64Array(rows.length * 6);
-    rows.forEach((r, i) => {
-      for (let j = 0; j < 6; j++) arr[6 * i + j] = r[j] ?? 0;
-    });
-    out.push(arr);
-  }
-  return out;
-}
-
+// Packed variables (chunk.ts PackedVariable): per power of T, rows of 6 [A, φ0..φ4].
 let PACKED: { L: PackedVariable; B: PackedVariable; R: PackedVariable; W1: number[]; termCount: number } | null = null;
 
 function packed() {
   if (!PACKED) {
-    const L = packVariable(elp.L);
-    const B = packVariable(elp.B);
-    const R = packVariable(elp.R);
+    const L = packVariable(elp.L, 6, 'ELP');
+    const B = packVariable(elp.B, 6, 'ELP');
+    const R = packVariable(elp.R, 6, 'ELP');
     const termCount = [...L, ...B, ...R].reduce((s, a) => s + a.length / 6, 0);
     PACKED = { L, B, R, W1: elp.W1.slice(), termCount };
   }
@@ -57,13 +39,9 @@ export function elpTermCount(): number {
   return packed().termCount;
 }
 
+/** Σ_α T^α Σ A sin(φ(T)) and its T-derivative into out[k], out[k + 1] (φ quartic in T). */
 function evalVariable(v: PackedVariable, T: number, out: Float64Array, k: number): void {
-  let value = 0;
-  let deriv = 0;
-  let tPow = 1;
-  let tPowM1 = 0;
-  for (let alpha = 0; alpha < v.length; alpha++) {
-    const arr = v[alpha];
+  powerSeriesInto(v, T, out, k, (arr, sd) => {
     let s = 0;
     let ds = 0;
     for (let i = 0; i < arr.length; i += 6) {
@@ -77,28 +55,20 @@ function evalVariable(v: PackedVariable, T: number, out: Float64Array, k: number
       s += a * Math.sin(phase);
       ds += a * Math.cos(phase) * dphase;
     }
-    value += tPow * s;
-    deriv += tPowM1 * s + tPow * ds;
-    tPowM1 = (alpha + 1) * tPow;
-    tPow *= T;
-  }
-  out[k] = value;
-  out[k + 1] = deriv;
+    sd[0] = s;
+    sd[1] = ds;
+  });
 }
 
+/** Σ_α T^α Σ A sin(φ(T)) without the derivative. */
 function evalVariableValue(v: PackedVariable, T: number): number {
-  let value = 0;
-  let tPow = 1;
-  for (let alpha = 0; alpha < v.length; alpha++) {
-    const arr = v[alpha];
+  return powerSeriesValue(v, T, (arr) => {
     let s = 0;
     for (let i = 0; i < arr.length; i += 6) {
       s += arr[i] * Math.sin(arr[i + 1] + T * (arr[i + 2] + T * (arr[i + 3] + T * (arr[i + 4] + T * arr[i + 5]))));
     }
-    value += tPow * s;
-    tPow *= T;
-  }
-  return value;
+    return s;
+  });
 }
 
 const scratch = new Float64Array(6);

@@ -15,35 +15,15 @@ import jupiter from 'astronomia/data/vsop87Bjupiter';
 import saturn from 'astronomia/data/vsop87Bsaturn';
 import uranus from 'astronomia/data/vsop87Buranus';
 import neptune from 'astronomia/data/vsop87Bneptune';
-import { combineSegments, flattenSeries, nodeRotationTable, seriesTermCount, type SeriesSegments } from './chunk';
+import { combineSegments, flattenSeries, nodeRotationTable, packVariable, powerSeriesInto, powerSeriesValue, seriesTermCount, type PackedVariable, type SeriesSegments } from './chunk';
 
 export type Vsop87Planet = 'mercury' | 'venus' | 'earth' | 'mars' | 'jupiter' | 'saturn' | 'uranus' | 'neptune';
 
 /** Days per Julian millennium: VSOP87's time unit. */
 const DAYS_PER_MILLENNIUM = 365_250;
 
-/** One coordinate (L, B or R): per power α of τ, flat triples [A, B, C]. */
-type PackedVariable = Float64Array[];
+/** One coordinate (L, B or R): per power α of τ, flat triples [A, B, C] (chunk.ts PackedVariable). */
 type PackedPlanet = { L: PackedVariable; B: PackedVariable; R: PackedVariable; termCount: number };
-
-function packVariable(v: Record<string, number[][]>): PackedVariable {
-  const powers = Object.keys(v)
-    .map(Number)
-    .sort((a, b) => a - b);
-  const out: PackedVariable = [];
-  for (const p of powers) {
-    if (p !== out.length) throw new Error(`VSOP87 data: missing power ${out.length}`);
-    const rows = v[String(p)];
-    const arr = new Float64Array(rows.length * 3);
-    rows.forEach((r, i) => {
-      arr[3 * i] = r[0];
-      arr[3 * i + 1] = r[1];
-      arr[3 * i + 2] = r[2];
-    });
-    out.push(arr);
-  }
-  return out;
-}
 
 const RAW: Record<Vsop87Planet, AstronomiaVsop87Data> = { mercury, venus, earth, mars, jupiter, saturn, uranus, neptune };
 const PACKED = new Map<Vsop87Planet, PackedPlanet>();
@@ -52,9 +32,9 @@ function packed(planet: Vsop87Planet): PackedPlanet {
   let p = PACKED.get(planet);
   if (!p) {
     const raw = RAW[planet];
-    const L = packVariable(raw.L);
-    const B = packVariable(raw.B);
-    const R = packVariable(raw.R);
+    const L = packVariable(raw.L, 3, 'VSOP87');
+    const B = packVariable(raw.B, 3, 'VSOP87');
+    const R = packVariable(raw.R, 3, 'VSOP87');
     const termCount = [...L, ...B, ...R].reduce((s, a) => s + a.length / 3, 0);
     p = { L, B, R, termCount };
     PACKED.set(planet, p);
@@ -67,14 +47,9 @@ export function vsop87TermCount(planet: Vsop87Planet): number {
   return packed(planet).termCount;
 }
 
-/** Evaluates Σ_α τ^α Σ A cos(B + Cτ) and its τ-derivative; returns [value, d/dτ]. */
+/** Evaluates Σ_α τ^α Σ A cos(B + Cτ) and its τ-derivative into out[k], out[k + 1]. */
 function evalVariable(v: PackedVariable, tau: number, out: Float64Array, k: number): void {
-  let value = 0;
-  let deriv = 0;
-  let tauPow = 1; // τ^α
-  let tauPowM1 = 0; // α·τ^(α−1)
-  for (let alpha = 0; alpha < v.length; alpha++) {
-    const arr = v[alpha];
+  powerSeriesInto(v, tau, out, k, (arr, sd) => {
     let s = 0;
     let ds = 0;
     for (let i = 0; i < arr.length; i += 3) {
@@ -84,27 +59,18 @@ function evalVariable(v: PackedVariable, tau: number, out: Float64Array, k: numb
       s += a * Math.cos(phase);
       ds -= a * c * Math.sin(phase);
     }
-    value += tauPow * s;
-    deriv += tauPowM1 * s + tauPow * ds;
-    tauPowM1 = (alpha + 1) * tauPow;
-    tauPow *= tau;
-  }
-  out[k] = value;
-  out[k + 1] = deriv;
+    sd[0] = s;
+    sd[1] = ds;
+  });
 }
 
 /** Σ_α τ^α Σ A cos(B + Cτ) without the derivative (cache building). */
 function evalVariableValue(v: PackedVariable, tau: number): number {
-  let value = 0;
-  let tauPow = 1;
-  for (let alpha = 0; alpha < v.length; alpha++) {
-    const arr = v[alpha];
+  return powerSeriesValue(v, tau, (arr) => {
     let s = 0;
     for (let i = 0; i < arr.length; i += 3) s += arr[i] * Math.cos(arr[i + 1] + arr[i + 2] * tau);
-    value += tauPow * s;
-    tauPow *= tau;
-  }
-  return value;
+    return s;
+  });
 }
 
 /** Position only (AU, VSOP87 frame), half the cost of vsop87StateInto; out[3..5] are left untouched. */
