@@ -312,7 +312,13 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
     const truth = truthOrbit();
     const injected = { 5: 10, 20: 8, 33: 6 }; // arcsec in a random direction: 20, 16, 12 sigma
     const obs = syntheticArc(truth, nightTimes(12, 3, 36), 0.5, 7, injected);
-    const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) }, { skipEncounter: true });
+    const stages: string[] = [];
+    const r = determineOrbit(
+      { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) },
+      { skipEncounter: true, onProgress: (p) => stages.push(p.stage) },
+    );
+    // one outlier per pass at most here (3 % of 36): the passes are reported as progress stages
+    expect(stages.filter((x) => /^outliers pass \d+ \(gravity-only\): 1 rejected/.test(x)).length).toBeGreaterThanOrEqual(3);
     const g = r.gravityOnly;
     const rejected = g.residuals.filter((x) => x.status === 'rejected');
     for (const i of Object.keys(injected).map(Number)) {
@@ -379,7 +385,12 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
     () => {
       const truth = truthOrbit();
       const obs = syntheticArc(truth, nightTimes(8, 2, 30), 0.5, 5);
-      const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT, nonGravTerms: ['a2'] }) });
+      const stages: string[] = [];
+      const r = determineOrbit(
+        { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT, nonGravTerms: ['a2'] }) },
+        { onProgress: (p) => stages.push(p.stage) },
+      );
+      expect(stages[stages.length - 1]).toBe('encounter');
       for (const f of [r.gravityOnly, r.nonGrav!]) {
         const e = f.encounter!;
         expect(e.body).toBe('earth');
