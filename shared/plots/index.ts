@@ -4,5 +4,5 @@ export type { BPlaneSvgOptions, BPlaneData, BPlaneBounds, BPlaneLayout, BPlaneUn
 export { distanceSvg, distanceSeries, hyperbolaDistanceKm, BODY_GM_KM3_S2 } from './distance';
 export type { DistanceSvgOptions, DistanceSeries, DistanceSeriesOptions } from './distance';
 export { covarianceEllipse, ellipsePoints, niceTicks, tickLabel, PLOT_COLORS } from './svg';
-export { residualsSvg, residualPoints, residualRangeArcsec, stationColors, dateTicks, dateLabel, STATION_COLORS, EXCLUDED_COLOR } from './residuals';
-export type { ResidualsSvgOptions, ResidualPoint, ResidualStatus } from './residuals';
+export { residualsSvg, residualPoints, nightMeans, residualRangeArcsec, stationColors, dateTicks, dateLabel, STATION_COLORS, EXCLUDED_COLOR } from './residuals';
+export type { ResidualsSvgOptions, ResidualPoint, ResidualStatus, NightMean } from './residuals';

@@ -10,6 +10,8 @@
 //  - excluded: hollow grey circle (kept out of the fit by the analyst).
 // Optional ±1-sigma error bars use the weights the fit used. Points outside a forced vertical range are drawn as a
 // small triangle on the panel edge, pointing the way they lie, so a zoom never hides that they exist.
+// Optionally a line through the nightly means of the used points makes a systematic trend (a gravity-only fit of an
+// object pushed by outgassing) stand out from the noise.
 // Two fits compared side by side use the same `timeRangeMs`, `yMaxArcsec` and `stations` so they read alike.
 import type { Residual } from '../schemas/od';
 import { esc, n2, niceTicks, PLOT_COLORS as C, tickLabel } from './svg';
@@ -82,6 +84,35 @@ export function residualRangeArcsec(points: readonly ResidualPoint[], opts: { er
 
 const DAY_MS = 86_400_000;
 
+export type NightMean = { timeMs: number; raCosDecArcsec: number; decArcsec: number; count: number };
+
+/**
+ * Mean residual of each night's used points: points (time-sorted) closer than `gapHours` (default 8 h) to the
+ * previous one belong to the same night. A line through these means shows a systematic trend through the noise.
+ */
+export function nightMeans(points: readonly ResidualPoint[], gapHours = 8): NightMean[] {
+  const used = points.filter((p) => p.status === 'used').sort((a, b) => a.timeMs - b.timeMs);
+  const out: NightMean[] = [];
+  let group: ResidualPoint[] = [];
+  const flush = () => {
+    if (!group.length) return;
+    const n = group.length;
+    out.push({
+      timeMs: group.reduce((s, p) => s + p.timeMs, 0) / n,
+      raCosDecArcsec: group.reduce((s, p) => s + p.raCosDecArcsec, 0) / n,
+      decArcsec: group.reduce((s, p) => s + p.decArcsec, 0) / n,
+      count: n,
+    });
+    group = [];
+  };
+  for (const p of used) {
+    if (group.length && p.timeMs - group[group.length - 1].timeMs > gapHours * 3_600_000) flush();
+    group.push(p);
+  }
+  flush();
+  return out;
+}
+
 /** Tick instants (UTC ms) for a date axis: whole days, or the first of a month, or of a year, about `count` of them. */
 export function dateTicks(minMs: number, maxMs: number, count = 6): number[] {
   if (!(maxMs > minMs)) return [minMs];
@@ -129,6 +160,8 @@ export type ResidualsSvgOptions = {
   caption?: string;
   /** Draw ±1-sigma bars (default false). */
   errorBars?: boolean;
+  /** Draw the nightly means of the used points joined by a line (default false): shows a trend through the noise. */
+  nightMeans?: boolean;
   /** Observations the analyst excluded (drawn greyed). */
   excluded?: (r: Residual) => boolean;
   /** Station codes for the colours and the legend (default: those in `residuals`); share it between plots compared side by side. */
@@ -161,7 +194,7 @@ export function residualsSvg(residuals: readonly Residual[], opts: ResidualsSvgO
   }
   const stationCodes = Object.keys(colors);
   const perRow = Math.max(1, Math.floor((width - 84) / LEGEND_SLOT));
-  const legendRows = Math.ceil((stationCodes.length + 3) / perRow);
+  const legendRows = Math.ceil((stationCodes.length + 3 + (opts.nightMeans ? 1 : 0)) / perRow);
   const top = opts.title === '' ? 16 : 40;
   const bottom = 52 + 16 * legendRows + (opts.caption ? 14 : 0);
   const gap = 28;
@@ -237,6 +270,13 @@ export function residualsSvg(residuals: readonly Residual[], opts: ResidualsSvgO
         }
       }
     }
+    if (opts.nightMeans) {
+      const means = nightMeans(points).filter((m) => Math.abs(panel === 'ra' ? m.raCosDecArcsec : m.decArcsec) <= yMax);
+      if (means.length > 1) {
+        const d = means.map((m, i) => `${i === 0 ? 'M' : 'L'}${n2(X(m.timeMs))} ${n2(Y(panel === 'ra' ? m.raCosDecArcsec : m.decArcsec))}`).join('');
+        p.push(`<path data-role="night-mean" d="${d}" fill="none" stroke="${C.nominal}" stroke-width="1.5" stroke-opacity="0.75"/>`);
+      }
+    }
     p.push('</g>');
   }
   // x-axis title and legend (stations, then the three markers), wrapped into rows
@@ -248,6 +288,7 @@ export function residualsSvg(residuals: readonly Residual[], opts: ResidualsSvgO
   entries.push(
     `<g data-role="legend-marker" data-status="used"><circle cx="6" cy="-4" r="3" fill="${C.muted}"/><text x="14" y="0" fill="${C.text}">used</text></g>`,
     `<g data-role="legend-marker" data-status="rejected"><path d="M2 -8L10 0M2 0L10 -8" stroke="${C.muted}" stroke-width="2"/><text x="14" y="0" fill="${C.text}">rejected (χ² rule)</text></g>`,
+    ...(opts.nightMeans ? [`<g data-role="legend-marker" data-status="night-mean"><path d="M0 -4L12 -4" stroke="${C.nominal}" stroke-width="1.5"/><text x="16" y="0" fill="${C.text}">nightly mean (used)</text></g>`] : []),
     `<g data-role="legend-marker" data-status="excluded"><circle cx="6" cy="-4" r="3.2" fill="none" stroke="${EXCLUDED_COLOR}" stroke-width="1.3"/><text x="14" y="0" fill="${C.text}">excluded by the analyst</text></g>`,
   );
   entries.forEach((e, i) => {

@@ -9,7 +9,7 @@
 import { SaxesParser } from 'saxes';
 import { describe, expect, it } from 'vitest';
 import type { Residual } from '../../shared/schemas/od';
-import { dateTicks, residualRangeArcsec, residualPoints, residualsSvg, stationColors, EXCLUDED_COLOR } from '../../shared/plots';
+import { dateTicks, nightMeans, residualRangeArcsec, residualPoints, residualsSvg, stationColors, EXCLUDED_COLOR } from '../../shared/plots';
 
 type El = { name: string; attrs: Record<string, string>; children: El[]; text: string; parent: El | null };
 
@@ -261,5 +261,51 @@ describe('residual table CSV', () => {
     expect(lines[0].split(',')).toHaveLength(9);
     expect(lines[1]).toBe(`10,HSA,2026-03-10T21:00:00.000Z,0.3,-0.2,0.3,0.25,${rows[0].chiSquare},used`);
     expect(lines[2].startsWith('11,"A,""B""",2026-04-02T22:30:00.000Z,-0.4,0.1,')).toBe(true);
+  });
+});
+
+describe('nightly means', () => {
+  // Two nights: three used points and one rejected on the first (across 0h UTC), two used on the second.
+  const night = (stn: string, obsTime: string, ra: number, dec: number, status: 'used' | 'rejected', i: number): Residual => ({
+    index: i, line: 20 + i, stn, obsTime, obsTimeTdbDays: 0, raCosDecArcsec: ra, decArcsec: dec, sigmaRaArcsec: 0.3, sigmaDecArcsec: 0.3, chiSquare: 1, status,
+  });
+  const rows = [
+    night('HSA', '2026-05-01T22:00:00Z', 0.3, -0.3, 'used', 0),
+    night('HSA', '2026-05-01T23:00:00Z', 0.6, 0.0, 'used', 1),
+    night('HSB', '2026-05-02T01:00:00Z', 0.0, 0.3, 'used', 2),
+    night('HSB', '2026-05-02T01:30:00Z', 5.0, 5.0, 'rejected', 3),
+    night('HSC', '2026-05-05T21:00:00Z', -0.2, 0.1, 'used', 4),
+    night('HSC', '2026-05-05T22:00:00Z', -0.4, 0.3, 'used', 5),
+  ];
+
+  it('averages the used points of each night (rejected and excluded ones left out)', () => {
+    const m = nightMeans(residualPoints(rows));
+    expect(m).toHaveLength(2);
+    expect(m[0].count).toBe(3);
+    expect(m[0].raCosDecArcsec).toBeCloseTo(0.3, 12);
+    expect(m[0].decArcsec).toBeCloseTo(0, 12);
+    expect(new Date(m[0].timeMs).toISOString()).toBe('2026-05-01T23:20:00.000Z');
+    expect(m[1]).toMatchObject({ count: 2 });
+    expect(m[1].raCosDecArcsec).toBeCloseTo(-0.3, 12);
+    expect(m[1].decArcsec).toBeCloseTo(0.2, 12);
+    // an excluded point no longer counts
+    const without = nightMeans(residualPoints(rows, (r) => r.line === 21));
+    expect(without[0].count).toBe(2);
+    expect(without[0].raCosDecArcsec).toBeCloseTo(0.15, 12);
+  });
+
+  it('draws them as a line through the means, on the panel scale', () => {
+    const doc = parseSvg(residualsSvg(rows, { nightMeans: true, yMaxArcsec: 1 }));
+    for (const panel of ['ra', 'dec'] as const) {
+      const g = all(doc, (e) => e.attrs['data-panel'] === panel)[0];
+      const Y = yAxis(g);
+      const line = all(g, (e) => e.attrs['data-role'] === 'night-mean');
+      expect(line).toHaveLength(1);
+      const ys = [...line[0].attrs.d.matchAll(/[ML][-\d.]+ ([-\d.]+)/g)].map((x) => Number(x[1]));
+      const want = panel === 'ra' ? [0.3, -0.3] : [0, 0.2];
+      expect(ys).toHaveLength(2);
+      ys.forEach((y, i) => expect(y).toBeCloseTo(Y(want[i]), 1));
+    }
+    expect(all(parseSvg(residualsSvg(rows)), (e) => e.attrs['data-role'] === 'night-mean')).toHaveLength(0);
   });
 });

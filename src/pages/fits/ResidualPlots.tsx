@@ -22,6 +22,7 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
   const [view, setView] = useState<View>(result.nonGrav ? 'both' : 'gravity-only');
   const [errorBars, setErrorBars] = useState(false);
   const [zoomUsed, setZoomUsed] = useState(true);
+  const [means, setMeans] = useState(true);
   const shown = fits.filter((f) => view === 'both' || f.label === view);
 
   const common = (() => {
@@ -45,6 +46,7 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
       height: view === 'both' ? 520 : 520,
       title: `${FIT_LABELS[f.label]}: RMS ${f.rmsArcsec.toFixed(3)}″, normalised ${f.rmsNormalized.toFixed(3)}`,
       errorBars,
+      nightMeans: means,
       excluded,
       stations: common.stations,
       timeRangeMs: common.timeRangeMs,
@@ -75,6 +77,9 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
           )}
           <label className="inline-flex items-center gap-2">
             <input type="checkbox" checked={errorBars} onChange={(e) => setErrorBars(e.target.checked)} /> ±1σ error bars
+          </label>
+          <label className="inline-flex items-center gap-2">
+            <input type="checkbox" checked={means} onChange={(e) => setMeans(e.target.checked)} /> Nightly means
           </label>
           <label className="inline-flex items-center gap-2">
             <input type="checkbox" checked={zoomUsed} onChange={(e) => setZoomUsed(e.target.checked)} /> Scale to the used points
