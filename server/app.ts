@@ -46,6 +46,9 @@ export function buildApp(deps: AppDeps): { app: Express; services: Services } {
 
   const csrf = createCsrf(config.sessionSecret, production);
   const api = express.Router();
+  // ADES astrometry may be sent as JSON text (shared/schemas/odApi.ts allows 5 MB of text; JSON escaping adds a
+  // little): that one path gets a larger limit, everything else 1 MB. body-parser skips a body already parsed.
+  api.post('/objects/:id/astrometry', express.json({ limit: '6mb' }));
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
   api.use(

@@ -164,6 +164,21 @@ describe('astrometry uploads', () => {
     expect(counts()).toEqual(before);
   });
 
+  it('a JSON upload larger than the 1 MB API body limit is read (this path allows 6 MB); larger bodies are refused', async () => {
+    const before = counts();
+    // ADES PSV allows padding blanks around values: one bad value padded to 1.5 MB must reach the parser (422 with
+    // its line), not be cut off by the body limit.
+    const padded = `361.5${' '.repeat(1_500_000)}`;
+    const rows = [{ stn: 'TQA', obsTime: '2026-09-08T01:00:00.000Z', ra: padded, dec: '11.0' }];
+    const res = await post(as.analyst, { text: psv(rows) });
+    expect(res.status).toBe(422);
+    expect(res.body.error.issues.map((i: { line: number; field: string | null }) => [i.line, i.field])).toEqual([[lineOfRow(0), 'ra']]);
+    const huge = await post(as.analyst, { text: 'x'.repeat(7_000_000) });
+    expect(huge.status).toBeGreaterThanOrEqual(400);
+    expect(huge.status).toBeLessThan(500);
+    expect(counts()).toEqual(before);
+  });
+
   it('an observatory not in the table is an issue with its line and code; nothing is stored', async () => {
     const before = counts();
     const rows = [
