@@ -103,6 +103,29 @@ describe('orbit determination in the browser', () => {
     expect(await astrometryCount(page, objectId)).toEqual(before);
     await screenshot(page, 'od-analyst-astrometry-refused');
 
+    // a good file, sent as a file (multipart): two new lines are added, the line repeating a stored one is skipped
+    const storedNow = (await (await page.request.get(`${server.url}/api/objects/${objectId}/astrometry`)).json()) as { observations: { stn: string; obsTime: string; raDeg: number; decDeg: number }[] };
+    const last = [...storedNow.observations].sort((a, b) => Date.parse(a.obsTime) - Date.parse(b.obsTime)).at(-1)!;
+    const later = (hours: number) => new Date(Date.parse(last.obsTime) + hours * 3_600_000).toISOString();
+    const goodAdes = [
+      '# version=2022',
+      '# submitter',
+      '! name Halden Sound test desk',
+      'provID|mode|stn|obsTime|ra|dec|rmsRA|rmsDec|astCat',
+      `HSO-26-U1|CCD|${last.stn}|${last.obsTime}|${last.raDeg}|${last.decDeg}|0.3|0.3|Gaia3`,
+      `HSO-26-U1|CCD|${last.stn}|${later(24)}|${last.raDeg + 0.01}|${last.decDeg + 0.01}|0.3|0.3|Gaia3`,
+      `HSO-26-U1|CCD|${last.stn}|${later(24.5)}|${last.raDeg + 0.011}|${last.decDeg + 0.011}|0.3|0.3|Gaia3`,
+    ].join('\n') + '\n';
+    await page.getByLabel('…or paste the text').fill('');
+    await page.getByLabel('ADES PSV file').setInputFiles({ name: 'hso-26-u1-late.psv', mimeType: 'text/plain', buffer: Buffer.from(goodAdes) });
+    await page.getByRole('button', { name: 'Upload the astrometry' }).click();
+    await page.getByText('hso-26-u1-late.psv: 2 observations added').waitFor();
+    await page.getByText('1 line skipped: already stored').waitFor();
+    expect(await page.getByTestId('ades-refused').count()).toBe(0);
+    expect(await astrometryCount(page, objectId)).toEqual({ observations: before.observations + 2, batches: before.batches + 1 });
+    await page.getByTestId('batch-table').getByText('hso-26-u1-late.psv').waitFor();
+    await page.getByTestId('observation-table').locator('tbody tr').nth(before.observations + 1).waitFor();
+
     // exclude the first observation: a reason is required; the row stays, greyed, with the reason
     const first = page.getByTestId('observation-table').locator('tbody tr').first();
     const excludedId = Number((await first.getAttribute('data-testid'))!.replace('observation-', ''));

@@ -16,26 +16,21 @@ export function UploadAstrometryForm({ objectId }: { objectId: number }) {
   const [done, setDone] = useState<{ result: UploadAstrometryResult; name: string } | null>(null);
   const issues = astrometryIssues(upload.error);
 
-  const submit = async (e: FormEvent) => {
+  const submit = (e: FormEvent) => {
     e.preventDefault();
     setLocalError(null);
     setDone(null);
     const file = fileRef.current?.files?.[0] ?? null;
-    let text = pasted;
-    let name = 'pasted text';
-    if (file) {
-      if (file.size > 5_000_000) {
-        setLocalError(`${file.name} is ${(file.size / 1e6).toFixed(1)} MB: 5 MB at most.`);
-        return;
-      }
-      text = await file.text();
-      name = file.name;
+    if (file && file.size > 5_000_000) {
+      setLocalError(`${file.name} is ${(file.size / 1e6).toFixed(1)} MB: 5 MB at most.`);
+      return;
     }
-    if (!text.trim()) {
+    if (!file && !pasted.trim()) {
       setLocalError('Choose an ADES PSV file or paste its text.');
       return;
     }
-    upload.mutate(file ? { fileName: file.name, text } : { text }, {
+    const name = file ? file.name : 'pasted text';
+    upload.mutate(file ? { kind: 'file', file } : { kind: 'text', text: pasted }, {
       onSuccess: (result) => {
         setDone({ result, name });
         setPasted('');
