@@ -60,13 +60,12 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
         <h2 id="residual-plots-heading" className="text-lg font-semibold">Residuals against time</h2>
         <div className="flex flex-wrap items-center gap-4 text-sm">
           {result.nonGrav && (
-            <div role="radiogroup" aria-label="Which fit" className="inline-flex overflow-hidden rounded-md border border-rule">
+            <div role="group" aria-label="Which fit to plot" className="inline-flex overflow-hidden rounded-md border border-rule">
               {(['both', 'gravity-only', 'non-gravitational'] as const).map((v) => (
                 <button
                   key={v}
                   type="button"
-                  role="radio"
-                  aria-checked={view === v}
+                  aria-pressed={view === v}
                   onClick={() => setView(v)}
                   className={`px-3 py-1.5 ${view === v ? 'bg-accent-700 text-white' : 'bg-white hover:bg-accent-50'}`}
                 >
