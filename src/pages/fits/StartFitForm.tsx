@@ -3,7 +3,7 @@
 // the iteration starts (Gauss's method or a stored solution version) and the iteration cap. Checked with the
 // shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
 import { useState, type FormEvent } from 'react';
-import { useNavigate } from 'react-router';
+import { Link, useNavigate } from 'react-router';
 import { fitSettingsSchema, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm } from '../../../shared/schemas/od';
 import type { SolutionSummary } from '../../../shared/schemas/objects';
 import { fieldErrors } from '../../api/client';
@@ -55,6 +55,12 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
         Fits the {observationCount === null ? '' : `${observationCount} `}observations not excluded, first with gravity only, then with the chosen
         non-gravitational terms, and compares the two.
       </p>
+      {observationCount !== null && observationCount < 3 && (
+        <Notice tone="caution" className="mb-4">
+          A fit needs at least 3 observations from 2 nights; this object has {observationCount === 0 ? 'none' : observationCount} not excluded.{' '}
+          <Link to={`/objects/${objectId}/astrometry`}>Add astrometry</Link>.
+        </Notice>
+      )}
       <form onSubmit={submit} noValidate className="grid gap-4 sm:grid-cols-2">
         <TextField label="Solution epoch" value={epoch} onChange={(e) => setEpoch(e.target.value)} error={errors.epoch} placeholder="middle of the arc" hint="Empty: the middle of the arc at 0h TDB. Or UTC like 2026-06-01T00:00:00Z, TDB:… or JD:…" />
         <SelectField label="Start from" value={initial} onChange={(e) => setInitial(e.target.value)} error={errors.initialSolutionId} hint="Gauss's method needs no prior orbit">
@@ -87,7 +93,7 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
         </label>
         <div className="sm:col-span-2">
           {create.isError && Object.keys(fieldErrors(create.error)).length === 0 && <Notice tone="error" className="mb-3">{errorMessage(create.error)}</Notice>}
-          <Button type="submit" busy={create.isPending} disabled={observationCount === 0}>Queue the fit</Button>
+          <Button type="submit" busy={create.isPending} disabled={observationCount !== null && observationCount < 3}>Queue the fit</Button>
         </div>
       </form>
     </Card>
