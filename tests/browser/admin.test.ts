@@ -2,16 +2,14 @@
 // and signs in, the admin changes their role and deactivates them; and the sign-in refusal is
 // the same uniform message for a wrong password, an unknown e-mail and a deactivated account
 // (issue 2: "a uniform error that does not reveal whether the e-mail exists").
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { defineAbilityFor } from '../../shared/abilities';
 import { AREAS } from '../../src/auth/areas';
-import { startTestServer } from '../helpers/testServer';
 import {
+  browserSuite,
   demoCredentials,
-  ensureClientBuilt,
   isVisible,
-  launchBrowser,
   navLabels,
   newContext,
   screenshot,
@@ -21,23 +19,11 @@ import {
   watchPageErrors,
 } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite();
 
 /** The invitation link's token from the newest e-mail to `address` caught by the test server's SMTP fake. */
 async function invitationTokenFor(address: string): Promise<string> {
-  const mail = await server.mail.waitFor(address, 10_000);
+  const mail = await suite.server.mail.waitFor(address, 10_000);
   const match = /\/invite\/([A-Za-z0-9_-]{20,100})/.exec(mail.text);
   if (!match) throw new Error(`The e-mail to ${address} has no /invite/<token> link:\n${mail.text}`);
   return match[1];
@@ -58,7 +44,7 @@ describe('admin users', () => {
   const invitee = { name: 'Oskar Fenwyck', email: 'oskar.fenwyck@hspdo.example', password: 'quiet-harbour-lantern-42' };
 
   it('invites a user, who sets a password and signs in; then changes their role and deactivates them', async () => {
-    const adminCtx = await newContext(browser, server.url);
+    const adminCtx = await newContext(suite.browser, suite.server.url);
     const admin = await adminCtx.newPage();
     const adminErrors = watchPageErrors(admin);
     const creds = demoCredentials('admin');
@@ -79,7 +65,7 @@ describe('admin users', () => {
 
     // The invitee opens the link from the e-mail in their own browser context.
     const token = await invitationTokenFor(invitee.email);
-    const userCtx = await newContext(browser, server.url);
+    const userCtx = await newContext(suite.browser, suite.server.url);
     const user = await userCtx.newPage();
     const userErrors = watchPageErrors(user);
     await user.goto(`/invite/${token}`);
@@ -107,7 +93,7 @@ describe('admin users', () => {
     expect(await user.getByTestId('current-user').textContent()).toContain('Analyst');
 
     // The used link cannot be used again.
-    const reuseCtx = await newContext(browser, server.url);
+    const reuseCtx = await newContext(suite.browser, suite.server.url);
     const reuse = await reuseCtx.newPage();
     await reuse.goto(`/invite/${token}`);
     expect(await isVisible(reuse.getByText('This invitation link cannot be used'))).toBe(true);
@@ -152,7 +138,7 @@ describe('admin users', () => {
     expect(refusal.length).toBeGreaterThan(0);
 
     // The refusal is word for word the one a wrong password gets.
-    const probeCtx = await newContext(browser, server.url);
+    const probeCtx = await newContext(suite.browser, suite.server.url);
     const probe = await probeCtx.newPage();
     await signIn(probe, creds.email, 'not-the-right-password');
     expect(await signInError(probe)).toBe(refusal);
@@ -174,7 +160,7 @@ describe('admin users', () => {
 
 describe('sign-in refusal', () => {
   it('shows the same uniform error for a wrong password and for an unknown e-mail, and stays on sign-in', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     const errors = watchPageErrors(page);
 
@@ -198,7 +184,7 @@ describe('sign-in refusal', () => {
 
 describe('account', () => {
   it('changes the own password: refuses a wrong current password and a mismatch, then the new one works', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     const errors = watchPageErrors(page, [401, 422]); // 422: the wrong current password, on purpose
     const { email, password } = demoCredentials('liaison');
@@ -246,7 +232,7 @@ describe('account', () => {
 
 describe('error states', () => {
   it('shows a failed user list with the server message and recovers with "Try again"', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     await signInAs(page, 'admin');
     // GET /api/users fails with the uniform error body (through the client's own retries) until
@@ -276,7 +262,7 @@ describe('error states', () => {
   });
 
   it('says so when the server cannot be reached at sign-in', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     await page.goto('/sign-in');
     await waitForHeading(page, 'Sign in to Tocsin');

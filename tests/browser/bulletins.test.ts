@@ -5,34 +5,11 @@
 // Sources: the agreed contract (issue 6); the demo asteroid's designed encounter (server/db/demo/make-nea.ts:
 // about 26 000 km from Earth on 2034-09-17).
 import { readFileSync } from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { startTestServer } from '../helpers/testServer';
-import {
-  demoCredentials,
-  ensureClientBuilt,
-  launchBrowser,
-  screenshot,
-  signedInPage,
-  signInAs,
-  signOut,
-  waitForHeading,
-  type DemoRole,
-} from './harness';
+import { browserSuite, demoCredentials, screenshot, signedInPage, signInAs, signOut, waitForHeading, type DemoRole } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer({ runner: { pollMs: 200 } });
-  browser = await launchBrowser();
-}, 300_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite({ runner: { pollMs: 200 } }, { setupTimeoutMs: 300_000 });
 
 async function apiJson(page: Page, method: 'GET' | 'POST', path: string, body?: unknown) {
   const { csrfToken } = await (await page.request.get('/api/csrf')).json();
@@ -59,12 +36,12 @@ let firstRunId = 0;
 let approvedBulletinId = 0;
 let objectIdOfN4 = 0;
 
-const signedIn = (role: DemoRole) => signedInPage(browser, server.url, role, { expectedStatuses: [401, 409] });
+const signedIn = (role: DemoRole) => signedInPage(suite.browser, suite.server.url, role, { expectedStatuses: [401, 409] });
 
 describe('bulletins in the browser', () => {
   it('an analyst drafts with a linked figure and submits; another user approves; the PDF downloads', async () => {
     // --- the analyst drafts
-    const { context, page, errors, refused } = await signedInPage(browser, server.url, 'analyst');
+    const { context, page, errors, refused } = await signedInPage(suite.browser, suite.server.url, 'analyst');
     const objects = await apiJson(page, 'GET', '/api/objects?q=HSO-26-N4');
     const objectId = objects.items[0].id as number;
     const runId = await finishedRun(page, objectId);

@@ -4,6 +4,8 @@ import { existsSync, mkdirSync, openSync, closeSync, readdirSync, renameSync, rm
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
+import { startTestServer, type TestServer, type TestServerOptions } from '../helpers/testServer';
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 export const CLIENT_DIR = path.join(ROOT, 'dist/client');
@@ -86,6 +88,42 @@ export async function ensureClientBuilt(): Promise<void> {
   } finally {
     rmSync(lock, { force: true });
   }
+}
+
+/** What a browser test file works with: its test server and Chromium. */
+export interface BrowserSuite {
+  server: TestServer;
+  browser: Browser;
+}
+
+export interface BrowserSuiteHooks {
+  /** Time for the set-up (client build, server start, browser launch), ms; the configured hookTimeout by default. */
+  setupTimeoutMs?: number;
+  /** Run once the server is up, before the browser starts (e.g. start a background service). */
+  afterStart?: (server: TestServer) => unknown;
+  /** Run before the browser and the server close (e.g. stop that service). */
+  beforeClose?: (server: TestServer) => unknown;
+}
+
+/**
+ * The set-up of a browser test file: before its tests, build the client when stale, start a test server with
+ * `serverOptions` and launch Chromium; after them, close both. The returned object's `server` and `browser` are
+ * set once the set-up has run: read them inside tests and helpers, not when the file loads.
+ */
+export function browserSuite(serverOptions: TestServerOptions = {}, hooks: BrowserSuiteHooks = {}): BrowserSuite {
+  const suite = {} as BrowserSuite;
+  beforeAll(async () => {
+    await ensureClientBuilt();
+    suite.server = await startTestServer(serverOptions);
+    await hooks.afterStart?.(suite.server);
+    suite.browser = await launchBrowser();
+  }, hooks.setupTimeoutMs);
+  afterAll(async () => {
+    if (suite.server) await hooks.beforeClose?.(suite.server);
+    await suite.browser?.close();
+    await suite.server?.close();
+  });
+  return suite;
 }
 
 /** Launch Debian's Chromium headless. Fails (never skips) with a clear message when it is missing. */

@@ -3,28 +3,14 @@
 // engine's line-precise issue, and an accepted upload becoming the next version.
 // Sources: the agreed contract (issue 5 items 1, 2); the demo scenario (server/db/demo).
 import fs from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { startTestServer } from '../helpers/testServer';
-import { ensureClientBuilt, isVisible, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
+import { describe, expect, it } from 'vitest';
+import { browserSuite, isVisible, screenshot, signedInPage, waitForHeading } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite();
 
 describe('objects as an analyst', () => {
   it('lists, sorts, searches, compares versions and uploads a solution', async () => {
-    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', { expectedStatuses: [401, 422] });
+    const { context, page, errors } = await signedInPage(suite.browser, suite.server.url, 'analyst', { expectedStatuses: [401, 422] });
 
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Objects', exact: true }).click();
     expect(await waitForHeading(page, 'Objects')).toBe('Objects');

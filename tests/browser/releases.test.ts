@@ -9,29 +9,21 @@
 // Europe/Berlin is UTC+1 outside it and UTC+2 inside), computed below without Intl as an independent check of the
 // form's conversion.
 import { eq } from 'drizzle-orm';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { users } from '../../server/db/schema';
 import { PUBLIC_CAUTION } from '../../shared/releases/plainLanguage';
-import { startTestServer } from '../helpers/testServer';
-import { demoCredentials, ensureClientBuilt, launchBrowser, newContext, screenshot, signedInPage, waitForHeading, watchPageErrors } from './harness';
+import { browserSuite, demoCredentials, newContext, screenshot, signedInPage, waitForHeading, watchPageErrors } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer({ runner: { pollMs: 200 } });
-  // the durable release scheduler, as server/index.ts starts it
-  server.services.releaseScheduler.start();
-  browser = await launchBrowser();
-}, 300_000);
-
-afterAll(async () => {
-  server?.services.releaseScheduler.stop();
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite(
+  { runner: { pollMs: 200 } },
+  {
+    setupTimeoutMs: 300_000,
+    // the durable release scheduler, as server/index.ts starts it
+    afterStart: (server) => server.services.releaseScheduler.start(),
+    beforeClose: (server) => server.services.releaseScheduler.stop(),
+  },
+);
 
 const pad = (n: number, w = 2) => String(n).padStart(w, '0');
 
@@ -57,7 +49,7 @@ async function apiJson(page: Page, method: 'GET' | 'POST', path: string, body?: 
 }
 
 function actor(role: 'analyst' | 'reviewer' | 'communications') {
-  const u = server.db.select().from(users).where(eq(users.email, demoCredentials(role).email)).get();
+  const u = suite.server.db.select().from(users).where(eq(users.email, demoCredentials(role).email)).get();
   if (!u) throw new Error(`no demo ${role}`);
   return { id: u.id, role: u.role, name: u.name };
 }
@@ -87,9 +79,9 @@ async function approvedBulletin(page: Page): Promise<{ id: number; title: string
     content: [{ type: 'paragraph', content: [{ type: 'text', text: 'Nominal miss distance from the centre of the Earth: ' }, figure, { type: 'text', text: '.' }] }],
   };
   const analyst = actor('analyst');
-  const b = server.services.bulletins.create({ objectId, title, document: document as never }, analyst);
-  server.services.bulletins.transition(b.id, { action: 'submit' }, analyst);
-  server.services.bulletins.transition(
+  const b = suite.server.services.bulletins.create({ objectId, title, document: document as never }, analyst);
+  suite.server.services.bulletins.transition(b.id, { action: 'submit' }, analyst);
+  suite.server.services.bulletins.transition(
     b.id,
     { action: 'approve', confirmedFigures: b.figures.map((f) => ({ index: f.index, runId: f.attrs.runId, quantity: f.attrs.quantity })) },
     actor('reviewer'),
@@ -98,7 +90,7 @@ async function approvedBulletin(page: Page): Promise<{ id: number; title: string
 }
 
 const signedIn = (role: 'analyst' | 'reviewer' | 'communications', timezoneId = 'UTC') =>
-  signedInPage(browser, server.url, role, { viewport: { width: 1280, height: 900 }, timezoneId, timeoutMs: 20_000 });
+  signedInPage(suite.browser, suite.server.url, role, { viewport: { width: 1280, height: 900 }, timezoneId, timeoutMs: 20_000 });
 
 /** Poll `check` (each call may reload) until it returns true or the time is up. */
 async function eventually(what: string, check: () => Promise<boolean>, timeoutMs: number, everyMs = 500): Promise<void> {
@@ -230,7 +222,7 @@ describe('press releases in the browser', () => {
     expect((await page.getByTestId('publish-at-zone').first().textContent()) ?? '').toContain(`${wall.replace('T', ' ')} Europe/Berlin`);
 
     // ---- before its time: absent from the public site, the public JSON and the feed (checked from a signed-out context)
-    const visitor = await newContext(browser, server.url);
+    const visitor = await newContext(suite.browser, suite.server.url);
     const pub = await visitor.newPage();
     const pubErrors = watchPageErrors(pub, [404]);
     const checkedAt = Date.now();
@@ -287,10 +279,10 @@ describe('press releases in the browser', () => {
     }
     const title = 'Second statement on HSO-26-N4, never to be published';
     const comms = actor('communications');
-    const created = server.services.releases.create({ bulletinId: sharedBulletin.id, version: 1, title }, comms);
-    server.services.releases.transition(created.id, { action: 'submit' }, comms);
+    const created = suite.server.services.releases.create({ bulletinId: sharedBulletin.id, version: 1, title }, comms);
+    suite.server.services.releases.transition(created.id, { action: 'submit' }, comms);
     const askedFor = 'Say "about" before the distance, as in the plain-language sentence.';
-    server.services.releases.transition(created.id, { action: 'request_changes', comment: askedFor }, actor('reviewer'));
+    suite.server.services.releases.transition(created.id, { action: 'request_changes', comment: askedFor }, actor('reviewer'));
 
     // communications staff in New York: US daylight time (UTC-4) in July, standard time (UTC-5) in December
     const ny = await signedIn('communications', 'America/New_York');
@@ -303,8 +295,8 @@ describe('press releases in the browser', () => {
     await page.getByRole('dialog', { name: 'Revise' }).getByRole('button', { name: 'Revise' }).click();
     await page.getByTestId('release-state').filter({ hasText: 'Draft' }).first().waitFor();
     await page.getByTestId('bulletin-editor').waitFor();
-    server.services.releases.transition(created.id, { action: 'submit' }, comms);
-    server.services.releases.transition(created.id, { action: 'approve' }, actor('reviewer'));
+    suite.server.services.releases.transition(created.id, { action: 'submit' }, comms);
+    suite.server.services.releases.transition(created.id, { action: 'approve' }, actor('reviewer'));
     await page.reload();
     await page.getByTestId('release-state').filter({ hasText: 'Approved' }).first().waitFor();
     expect((await page.getByTestId('public-caution').textContent()) ?? '').toContain(PUBLIC_CAUTION);
@@ -356,11 +348,11 @@ describe('press releases in the browser', () => {
     await ny.context.close();
 
     // nothing of it on the public side
-    const list = await fetch(`${server.url}/api/public/releases`);
+    const list = await fetch(`${suite.server.url}/api/public/releases`);
     expect(list.status).toBe(200);
     expect(await list.text()).not.toContain(title);
-    expect(await (await fetch(`${server.url}/public/feed.atom`)).text()).not.toContain(title);
-    expect(await (await fetch(`${server.url}/public`)).text()).not.toContain(title);
+    expect(await (await fetch(`${suite.server.url}/public/feed.atom`)).text()).not.toContain(title);
+    expect(await (await fetch(`${suite.server.url}/public`)).text()).not.toContain(title);
 
     // an analyst reads the release but is offered no action (the route table's ability for transitions)
     const analyst = await signedIn('analyst');

@@ -5,24 +5,11 @@
 // 2034-09-17); lunar distance 384 399 km and Earth radius 6378.137 km as stated in shared/format.ts
 // (26 000 km = 0.0676 LD = 4.08 Earth radii).
 import fs from 'node:fs';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Locator, Page } from 'playwright-core';
-import { startTestServer } from '../helpers/testServer';
-import { ensureClientBuilt, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
+import { describe, expect, it } from 'vitest';
+import type { Locator, Page } from 'playwright-core';
+import { browserSuite, screenshot, signedInPage, waitForHeading } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer({ runner: { pollMs: 200 } });
-  browser = await launchBrowser();
-}, 240_000);
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite({ runner: { pollMs: 200 } }, { setupTimeoutMs: 240_000 });
 
 /**
  * Pixels of an element's screenshot (PNG, decoded by the browser itself) that are not plot background: far from
@@ -59,12 +46,12 @@ async function countInk(page: Page, el: Locator, box: { left: number; top: numbe
 
 describe('run results in the browser', () => {
   it('an analyst uploads a solution, runs it, and reads the table and the b-plane plot', async () => {
-    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', {
+    const { context, page, errors } = await signedInPage(suite.browser, suite.server.url, 'analyst', {
       expectedStatuses: [401, 422],
       viewport: { width: 1280, height: 900 },
     });
 
-    const objects = await (await page.request.get(`${server.url}/api/objects?q=HSO-26-N4`)).json();
+    const objects = await (await page.request.get(`${suite.server.url}/api/objects?q=HSO-26-N4`)).json();
     const objectId = objects.items[0].id as number;
     await page.goto(`/objects/${objectId}`);
     expect(await waitForHeading(page, 'HSO-26-N4')).toBe('HSO-26-N4');

@@ -3,16 +3,13 @@
 // Expected areas come from issue 2 ("Admin screens to create and invite users, assign roles,
 // deactivate"; "an account page (change password)" for every signed-in user), written out here
 // per role, and are also cross-checked against the one ability definition in shared/abilities.ts.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
+import { describe, expect, it } from 'vitest';
 import { defineAbilityFor } from '../../shared/abilities';
 import { AREAS } from '../../src/auth/areas';
-import { startTestServer } from '../helpers/testServer';
 import {
+  browserSuite,
   DEMO_ROLES,
-  ensureClientBuilt,
   isVisible,
-  launchBrowser,
   navLabels,
   newContext,
   screenshot,
@@ -45,23 +42,11 @@ const AREA_PAGES: Record<string, { path: string; heading: RegExp }> = {
 const CAUTION =
   "Tocsin's numbers are analysis aids; official impact-risk statements come from the responsible national and international authorities.";
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer();
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite();
 
 describe('signed out', () => {
   it('sends a visitor to the sign-in page and shows the caution', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     const errors = watchPageErrors(page);
     await page.goto('/admin/users');
@@ -75,7 +60,7 @@ describe('signed out', () => {
   });
 
   it('shows the 404 page for an unknown address', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     await page.goto('/no/such/page');
     expect(await waitForHeading(page, 'Page not found')).toBe('Page not found');
@@ -85,7 +70,7 @@ describe('signed out', () => {
 
 describe.each(DEMO_ROLES)('role %s', (role) => {
   it('signs in, sees exactly its areas, visits home and users, signs out', async () => {
-    const { context, page, errors } = await signedInPage(browser, server.url, role);
+    const { context, page, errors } = await signedInPage(suite.browser, suite.server.url, role);
     expect(await waitForHeading(page, /^Good to see you/)).toMatch(/^Good to see you/);
 
     // Navigation: exactly the expected areas, and the same as the shared ability allows.
@@ -138,7 +123,7 @@ describe.each(DEMO_ROLES)('role %s', (role) => {
 
 describe('small screen', () => {
   it('hides the navigation behind a menu button that reveals the same areas', async () => {
-    const context = await newContext(browser, server.url, { width: 390, height: 844 });
+    const context = await newContext(suite.browser, suite.server.url, { width: 390, height: 844 });
     const page = await context.newPage();
     await signInAs(page, 'admin');
     const menu = page.getByRole('button', { name: 'Menu' });
@@ -158,7 +143,7 @@ describe('small screen', () => {
   });
 
   it('offers a skip link as the first thing a keyboard user reaches', async () => {
-    const context = await newContext(browser, server.url);
+    const context = await newContext(suite.browser, suite.server.url);
     const page = await context.newPage();
     await page.goto('/sign-in');
     await waitForHeading(page, 'Sign in to Tocsin');

@@ -3,30 +3,16 @@
 // run is listed on the object page.
 // Sources: the agreed contract (issue 5 items 3 and 4); the demo asteroid's designed encounter
 // (server/db/demo/make-nea.ts: about 26 000 km from Earth on 2034-09-17).
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { startTestServer } from '../helpers/testServer';
-import { ensureClientBuilt, launchBrowser, screenshot, signedInPage, waitForHeading } from './harness';
+import { describe, expect, it } from 'vitest';
+import { browserSuite, screenshot, signedInPage, waitForHeading } from './harness';
 
-let server: Awaited<ReturnType<typeof startTestServer>>;
-let browser: Browser;
-
-beforeAll(async () => {
-  await ensureClientBuilt();
-  server = await startTestServer({ runner: { pollMs: 200 } });
-  browser = await launchBrowser();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await server?.close();
-});
+const suite = browserSuite({ runner: { pollMs: 200 } });
 
 describe('assessment runs in the browser', () => {
   it('an analyst queues a run, watches its progress and reads the encounter table', async () => {
-    const { context, page, errors } = await signedInPage(browser, server.url, 'analyst', { expectedStatuses: [401, 422] });
+    const { context, page, errors } = await signedInPage(suite.browser, suite.server.url, 'analyst', { expectedStatuses: [401, 422] });
 
-    const objects = await (await page.request.get(`${server.url}/api/objects?q=HSO-26-N4`)).json();
+    const objects = await (await page.request.get(`${suite.server.url}/api/objects?q=HSO-26-N4`)).json();
     const objectId = objects.items[0].id as number;
     await page.goto(`/objects/${objectId}`);
     expect(await waitForHeading(page, 'HSO-26-N4')).toBe('HSO-26-N4');
