@@ -51,7 +51,7 @@ export const TASKS: Task[] = [
     title: 'Fit an orbit to astrometry',
     description: "Add an object's ADES astrometry, fit it with gravity only and with non-gravitational terms, compare the two and adopt one as a new solution version.",
     action: 'create',
-    subject: 'Solution',
+    subject: 'Astrometry',
   },
   {
     to: '/observatories',
