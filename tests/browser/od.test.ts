@@ -240,12 +240,33 @@ describe('orbit determination in the browser', () => {
     await page.getByTestId('observation-table').waitFor();
     expect(await page.getByRole('button', { name: 'Upload the astrometry' }).count()).toBe(0);
     expect(await page.getByRole('button', { name: /^Exclude / }).count()).toBe(0);
-    await page.goto(`/objects/${objectId}/fits`);
-    await page.getByRole('button', { name: 'Queue the fit' }).waitFor();
     await page.goto(`/fits/${demoFitId}`);
     expect(await waitForHeading(page, `Fit #${demoFitId}: HSO-26-U1`)).toBe(`Fit #${demoFitId}: HSO-26-U1`);
     await page.getByTestId('fit-summary').waitFor({ timeout: 600_000 });
     expect(await page.getByRole('button', { name: 'Adopt a fit…' }).count()).toBe(0);
+
+    // a reviewer may start a fit to check one: gravity only (no term ticked), refused epoch first
+    await page.goto(`/objects/${objectId}/fits`);
+    await page.getByRole('button', { name: 'Queue the fit' }).waitFor();
+    await page.getByLabel('Solution epoch').fill('next Tuesday');
+    await page.getByRole('button', { name: 'Queue the fit' }).click();
+    await page.getByText(/epoch must be/).waitFor();
+    await page.getByLabel('Solution epoch').fill('');
+    for (const term of ['A1 (radial)', 'A2 (transverse)']) await page.getByLabel(term).uncheck();
+    await page.getByRole('button', { name: 'Queue the fit' }).click();
+    await page.waitForURL((u) => /^\/fits\/\d+$/.test(u.pathname) && u.pathname !== `/fits/${demoFitId}`);
+    const ownId = Number(new URL(page.url()).pathname.split('/').pop());
+    const own = await finishedFit(page, ownId);
+    expect(own.status).toBe('done');
+    expect(own.settings.nonGravTerms).toEqual([]);
+    expect(own.result!.nonGrav).toBeNull();
+    await page.getByTestId('fit-status').filter({ hasText: 'Done' }).waitFor({ timeout: 30_000 });
+    await page.getByTestId('residual-plot-gravity-only').waitFor();
+    expect(await page.getByTestId('residual-plot-non-gravitational').count()).toBe(0);
+    expect(await page.getByTestId('comparison').count()).toBe(0);
+    expect(await page.getByTestId('fit-summary').locator('thead th').count()).toBe(2); // the quantity column and one fit
+    expect(await page.getByRole('button', { name: 'Adopt a fit…' }).count()).toBe(0);
+    await screenshot(page, 'od-reviewer-gravity-only-fit');
     expect(errors).toEqual([]);
     await context.close();
   }, 900_000);
