@@ -227,6 +227,24 @@ export async function signedInPage(browser: Browser, baseURL: string, role: Demo
   return { context, page, errors, refused };
 }
 
+/**
+ * Watch a run page's status badge (the page polls; no reload) until it reads Done or Failed, or `timeoutMs` has
+ * passed: the statuses seen in order of first sight, with 'progressbar' added when a progress bar showed while
+ * Running, and the status read last.
+ */
+export async function watchRunStatus(page: Page, timeoutMs: number): Promise<{ seen: string[]; final: string }> {
+  const status = page.getByTestId('run-status').first();
+  const seen = new Set<string>();
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const s = ((await status.textContent()) ?? '').trim();
+    seen.add(s);
+    if (s === 'Running' && (await page.getByRole('progressbar').count()) === 1) seen.add('progressbar');
+    if (s === 'Done' || s === 'Failed' || Date.now() > deadline) return { seen: [...seen], final: s };
+    await page.waitForTimeout(100);
+  }
+}
+
 /** The labels of the main navigation, in order. */
 export async function navLabels(page: Page): Promise<string[]> {
   const links = page.getByRole('navigation', { name: 'Main' }).getByRole('link');

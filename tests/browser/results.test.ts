@@ -7,7 +7,7 @@
 import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import type { Locator, Page } from 'playwright-core';
-import { browserSuite, screenshot, signedInPage, waitForHeading } from './harness';
+import { browserSuite, screenshot, signedInPage, waitForHeading, watchRunStatus } from './harness';
 
 const suite = browserSuite({ runner: { pollMs: 200 } }, { setupTimeoutMs: 240_000 });
 
@@ -76,18 +76,9 @@ describe('run results in the browser', () => {
     expect(await waitForHeading(page, `Run #${runId}: HSO-26-N4 v2`)).toBe(`Run #${runId}: HSO-26-N4 v2`);
 
     // progress: the page polls through Running (with a progress bar) to Done
-    const status = page.getByTestId('run-status').first();
-    const seen = new Set<string>();
-    const deadline = Date.now() + 90_000;
-    for (;;) {
-      const s = ((await status.textContent()) ?? '').trim();
-      seen.add(s);
-      if (s === 'Running' && (await page.getByRole('progressbar').count()) === 1) seen.add('progressbar');
-      if (s === 'Done' || s === 'Failed' || Date.now() > deadline) break;
-      await page.waitForTimeout(100);
-    }
-    expect([...seen]).toContain('progressbar');
-    expect(((await status.textContent()) ?? '').trim()).toBe('Done');
+    const { seen, final } = await watchRunStatus(page, 90_000);
+    expect(seen).toContain('progressbar');
+    expect(final).toBe('Done');
 
     // the table: date in UTC and TDB, distance, IP with its method, and where the numbers come from
     const table = page.getByTestId('encounter-table');

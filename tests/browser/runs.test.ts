@@ -4,7 +4,7 @@
 // Sources: the agreed contract (issue 5 items 3 and 4); the demo asteroid's designed encounter
 // (server/db/demo/make-nea.ts: about 26 000 km from Earth on 2034-09-17).
 import { describe, expect, it } from 'vitest';
-import { browserSuite, screenshot, signedInPage, waitForHeading } from './harness';
+import { browserSuite, screenshot, signedInPage, waitForHeading, watchRunStatus } from './harness';
 
 const suite = browserSuite({ runner: { pollMs: 200 } });
 
@@ -31,19 +31,10 @@ describe('assessment runs in the browser', () => {
     expect(await waitForHeading(page, /^Run #\d+: HSO-26-N4 v1$/)).toMatch(/^Run #\d+: HSO-26-N4 v1$/);
 
     // the page polls: the status badge moves on without a reload, through 'Running' with a progress bar
-    const status = page.getByTestId('run-status').first();
-    const seen = new Set<string>();
-    const deadline = Date.now() + 60_000;
-    for (;;) {
-      const s = ((await status.textContent()) ?? '').trim();
-      seen.add(s);
-      if (s === 'Running' && (await page.getByRole('progressbar').count()) === 1) seen.add('progressbar');
-      if (s === 'Done' || s === 'Failed' || Date.now() > deadline) break;
-      await page.waitForTimeout(100);
-    }
-    expect([...seen]).toContain('Running');
-    expect([...seen]).toContain('progressbar');
-    expect(((await status.textContent()) ?? '').trim()).toBe('Done');
+    const { seen, final } = await watchRunStatus(page, 60_000);
+    expect(seen).toContain('Running');
+    expect(seen).toContain('progressbar');
+    expect(final).toBe('Done');
 
     const table = page.getByTestId('encounter-table');
     await table.waitFor();
