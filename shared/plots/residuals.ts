@@ -117,7 +117,8 @@ export function nightMeans(points: readonly ResidualPoint[], gapHours = 8): Nigh
 export function dateTicks(minMs: number, maxMs: number, count = 6): number[] {
   if (!(maxMs > minMs)) return [minMs];
   const spanDays = (maxMs - minMs) / DAY_MS;
-  const dayStep = [1, 2, 5, 7, 10, 15].find((s) => spanDays / s <= count);
+  // whole-day steps on arcs up to about six weeks; longer arcs read better on month boundaries
+  const dayStep = spanDays <= 45 ? [1, 2, 5, 7, 10, 15].find((s) => spanDays / s <= count) : undefined;
   const out: number[] = [];
   if (dayStep !== undefined) {
     const start = Math.ceil(minMs / DAY_MS) * DAY_MS;

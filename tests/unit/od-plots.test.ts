@@ -309,3 +309,10 @@ describe('nightly means', () => {
     expect(all(parseSvg(residualsSvg(rows)), (e) => e.attrs['data-role'] === 'night-mean')).toHaveLength(0);
   });
 });
+
+describe('dateTicks on a four-month arc', () => {
+  it('stays on month boundaries even when many ticks fit', () => {
+    const t = dateTicks(Date.parse('2026-05-30T00:00:00Z'), Date.parse('2026-10-10T00:00:00Z'), 9);
+    expect(t.map((x) => new Date(x).toISOString().slice(0, 10))).toEqual(['2026-06-01', '2026-07-01', '2026-08-01', '2026-09-01', '2026-10-01']);
+  });
+});
