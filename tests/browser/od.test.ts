@@ -51,6 +51,7 @@ const BAD_ADES = [
   'HSO-26-U1 |CCD |HSA |2026-09-01T22:00:00.000Z|361.50000  |-12.30000  |0.30 |0.30  |Gaia3 |18.2 |G',
   'HSO-26-U1 |CCD |HSA |2026-09-01T22:30:00.000Z|120.10000  |-95.00000  |0.30 |0.30  |Gaia3 |18.2 |G',
   'HSO-26-U1 |CCD |HSA |2026-09-01T23:00:00.000Z|120.20000  |-12.40000  |-0.30|0.30  |Gaia3 |18.2 |G',
+  'HSO-26-U1 |CCD |XQ9 |2026-09-01T23:30:00.000Z|120.30000  |-12.50000  |0.30 |0.30  |Gaia3 |18.2 |G',
 ].join('\n') + '\n';
 
 async function visitorId(page: Page): Promise<number> {
@@ -95,10 +96,11 @@ describe('orbit determination in the browser', () => {
     const issues = page.getByTestId('ades-issues');
     await issues.waitFor();
     const rows = (await issues.locator('tbody tr').allInnerTexts()).map((r) => r.replace(/\s+/g, ' ').trim());
-    expect(rows).toHaveLength(3);
+    expect(rows).toHaveLength(4);
     expect(rows[0]).toMatch(/^line 7 ra .*361\.5/);
     expect(rows[1]).toMatch(/^line 8 dec .*-95/);
     expect(rows[2]).toMatch(/^line 9 rmsRA /);
+    expect(rows[3]).toMatch(/^line 10 stn .*XQ9/); // an observatory not in the office's table
     expect(await page.getByText('The file was refused').count()).toBe(1);
     expect(await astrometryCount(page, objectId)).toEqual(before);
     await screenshot(page, 'od-analyst-astrometry-refused');
