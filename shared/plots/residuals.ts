@@ -207,8 +207,9 @@ export function residualsSvg(residuals: readonly Residual[], opts: ResidualsSvgO
   const X = (t: number) => boxes.ra.x + ((t - tMin) / (tMax - tMin)) * boxes.ra.w;
   const Yof = (b: Box) => (v: number) => b.y + b.h / 2 - (v / yMax) * (b.h / 2);
   const p: string[] = [];
+  const label = `${opts.title || 'Residuals'}: RA·cos(Dec) and Dec residuals in arcseconds against time, ${points.length} observations`;
   p.push(
-    `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="Helvetica, Arial, sans-serif" font-size="12">`,
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="Helvetica, Arial, sans-serif" font-size="12" role="img" aria-label="${esc(label)}">`,
     `<rect x="0" y="0" width="${width}" height="${height}" fill="#ffffff"/>`,
   );
   if (opts.title !== '') {
