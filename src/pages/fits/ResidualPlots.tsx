@@ -92,7 +92,7 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
             <div className="[&>svg]:h-auto [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: svg }} />
             <figcaption className="flex flex-wrap items-center justify-between gap-2 px-2 pb-1 text-xs text-ink-soft">
               <span>
-                Observed − computed, arcsec; RA residuals multiplied by cos(Dec).{fits.length > 1 ? ' Both fits are drawn on the same time axis and vertical scale.' : ''}
+                Observed − computed, arcsec; RA residuals multiplied by cos(Dec).{fits.length > 1 ? ' Both fits share the time axis, vertical scale and station colours.' : ''}
                 {zoomUsed ? ' Scaled to the used points: triangles on an edge are points beyond it.' : ''}
               </span>
               <button type="button" className="text-accent-700 underline" onClick={() => download(svg, `${fileStem}-${label}-residuals.svg`)}>
