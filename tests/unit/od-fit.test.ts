@@ -4,7 +4,7 @@ import { classifyOrbit } from '../../server/engine/classify';
 import { GM_AU3_D2 } from '../../server/engine/constants';
 import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
-import { determineOrbit, FitAbortedError, OrbitDeterminationError } from '../../server/engine/od/fit';
+import { determineOrbit, FitAbortedError, nightlyDeweighting, OrbitDeterminationError } from '../../server/engine/od/fit';
 import { encounterUncertainty } from '../../server/engine/od/encounter';
 import { cholesky } from '../../server/engine/linalg/cholesky';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
@@ -173,6 +173,27 @@ function stateChiSquare(fit: { positionAu: number[]; velocityAuD: number[]; cova
   const sol = solveNormal(cov, Float64Array.from(d), 6, false)!;
   return d.reduce((a, x, i) => a + x * sol.step[i], 0);
 }
+
+describe('de-weighting many observations of one station in one night (METHODS.md §9.1)', () => {
+  // Rule: a station-night with N > 4 observations has its sigmas scaled by sqrt(N/4) (Vereš et al. 2017, Icarus 296,
+  // 139; recalled from memory). Nights are split at gaps longer than 6 h (common practice, no source).
+  const at = (stn: string, tdbDays: number) => ({ stn, obsTimeTdbDays: tdbDays });
+  it('sixteen exposures of one station in one night weigh as four (sigma x 2); tracklets of 3-4 are untouched', () => {
+    const obs = [
+      ...Array.from({ length: 16 }, (_, k) => at('AAA', 100 + k * 0.01)), // one night, 16 exposures
+      ...Array.from({ length: 4 }, (_, k) => at('AAA', 101 + k * 0.01)), // next night, 4
+      ...Array.from({ length: 3 }, (_, k) => at('BBB', 100 + k * 0.01)), // another station the same night, 3
+      ...Array.from({ length: 9 }, (_, k) => at('CCC', 102 + (k % 3) * 0.01 + Math.floor(k / 3) * 0.3)), // three sessions 7 h apart
+    ];
+    const f = Array.from(nightlyDeweighting(obs));
+    expect(f.slice(0, 16)).toEqual(Array(16).fill(2));
+    expect(f.slice(16, 23)).toEqual(Array(7).fill(1));
+    expect(f.slice(23)).toEqual(Array(9).fill(1));
+    // five in a night: sqrt(5/4); order of the input does not matter
+    const five = [at('X', 5.3), at('X', 5.1), at('X', 5.2), at('X', 5.0), at('X', 5.4)];
+    for (const v of nightlyDeweighting(five)) expect(v).toBeCloseTo(Math.sqrt(5 / 4), 15);
+  });
+});
 
 describe('fitToSolutionInput epoch text', () => {
   it('writes "JD:" with the day and fraction separately and reads back to the same TDB instant', () => {

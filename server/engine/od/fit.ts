@@ -11,7 +11,8 @@
  *     -> elements with 1-sigma, unbound significance (classify.ts), encounter uncertainty (encounter.ts),
  *        comparison (compare.ts).
  *
- * Weights: 2x2 blocks from rmsRA (of RA·cos δ), rmsDec and rmsCorr; DEFAULT_OBSERVATION_SIGMA_ARCSEC when missing.
+ * Weights: 2x2 blocks from rmsRA (of RA·cos δ), rmsDec and rmsCorr; DEFAULT_OBSERVATION_SIGMA_ARCSEC when missing;
+ * more than four observations of one station in one night are de-weighted by sqrt(N/4) (nightlyDeweighting).
  * The dynamics are the engine's n-body model (+ the fitted non-grav terms); the epoch is settings.epoch or the
  * middle of the arc rounded to 0h TDB.
  *
@@ -409,6 +410,36 @@ function runFit(
   return { result, params, used, plainChi2 };
 }
 
+/**
+ * Observations of one station in one night share errors (the same reference stars, seeing, timing), so many of them
+ * carry less information than their count suggests (METHODS.md §9.1: de-weight many observations from one night).
+ * Rule: a station-night with N > NIGHTLY_FREE_COUNT observations has every sigma scaled by sqrt(N / 4), so the night
+ * weighs as four observations (Vereš et al. 2017, Icarus 296, 139, the sqrt(N/4) rule; recalled from memory).
+ * Returns the factor per observation (1 for most arcs, whose tracklets have 3 to 4 exposures).
+ */
+export const NIGHTLY_FREE_COUNT = 4;
+export function nightlyDeweighting(obs: readonly Pick<OpticalObservation, 'stn' | 'obsTimeTdbDays'>[]): Float64Array {
+  const factors = new Float64Array(obs.length).fill(1);
+  const byStation = new Map<string, number[]>();
+  obs.forEach((o, i) => {
+    const list = byStation.get(o.stn) ?? [];
+    list.push(i);
+    byStation.set(o.stn, list);
+  });
+  for (const list of byStation.values()) {
+    list.sort((a, b) => obs[a].obsTimeTdbDays - obs[b].obsTimeTdbDays);
+    let start = 0;
+    for (let k = 1; k <= list.length; k++) {
+      if (k === list.length || obs[list[k]].obsTimeTdbDays - obs[list[k - 1]].obsTimeTdbDays > NIGHT_GAP_DAYS) {
+        const n = k - start;
+        if (n > NIGHTLY_FREE_COUNT) for (let j = start; j < k; j++) factors[list[j]] = Math.sqrt(n / NIGHTLY_FREE_COUNT);
+        start = k;
+      }
+    }
+  }
+  return factors;
+}
+
 /** Group time-sorted indices into nights (gaps > NIGHT_GAP_DAYS). */
 function nightsOf(order: number[], obs: OpticalObservation[]): number[][] {
   const nights: number[][] = [];
@@ -591,9 +622,10 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   const obsCovariance = new Float64Array(3 * N);
   const sigmaRa = new Float64Array(N);
   const sigmaDec = new Float64Array(N);
+  const nightly = nightlyDeweighting(observations);
   observations.forEach((o, i) => {
-    sigmaRa[i] = o.rmsRaArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC;
-    sigmaDec[i] = o.rmsDecArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC;
+    sigmaRa[i] = (o.rmsRaArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC) * nightly[i];
+    sigmaDec[i] = (o.rmsDecArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC) * nightly[i];
     const w = observationWeight(sigmaRa[i], sigmaDec[i], o.rmsCorr ?? 0);
     weights.set(w.weight, 3 * i);
     obsCovariance.set(w.covariance, 3 * i);
