@@ -118,3 +118,30 @@ export async function api<T>(method: Method, path: string, body?: unknown): Prom
 }
 
 export const apiGet = <T>(path: string) => api<T>('GET', path);
+
+/**
+ * POST a multipart form (file uploads: the JSON wrapper above does not send FormData, and the API's JSON body limit
+ * is lower than its file limits). A fresh CSRF token is fetched for each upload; the uniform error body becomes an
+ * ApiError as in api(). Resolves with the parsed JSON body.
+ */
+export async function postForm<T>(path: string, form: FormData): Promise<T> {
+  const { csrfToken: token } = await api<{ csrfToken: string }>('GET', '/api/csrf');
+  setCsrfToken(token);
+  let res: Response;
+  try {
+    res = await fetch(path, {
+      method: 'POST',
+      credentials: 'same-origin',
+      headers: { Accept: 'application/json', 'x-csrf-token': token },
+      body: form,
+    });
+  } catch {
+    throw new ApiError(0, 'network', 'Tocsin could not reach the server. Check your connection and try again.');
+  }
+  const body = (await res.json().catch(() => null)) as { error?: { code: string; message: string; details?: unknown } } | null;
+  if (!res.ok) {
+    if (body?.error) throw new ApiError(res.status, body.error.code, body.error.message, body.error.details);
+    throw new ApiError(res.status, `http_${res.status}`, `The server answered ${res.status}`);
+  }
+  return body as unknown as T;
+}

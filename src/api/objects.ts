@@ -12,7 +12,7 @@ import type {
   TrackedObjectKind,
   UpdateObjectBody,
 } from '../../shared/schemas/objects';
-import { api, ApiError, setCsrfToken } from './client';
+import { api, ApiError, postForm } from './client';
 
 /** The list request as the client builds it (the server validates with objectListQuerySchema). */
 export interface ObjectListQuery {
@@ -98,30 +98,12 @@ export type SolutionUpload =
   | { kind: 'file'; file: File; fields: Record<string, string> }
   | { kind: 'form'; body: Record<string, unknown> };
 
-/** Multipart upload: the JSON wrapper in client.ts does not send FormData, so this fetches a CSRF token itself. */
-async function uploadSolutionFile(id: number, file: File, fields: Record<string, string>): Promise<Solution> {
-  const { csrfToken } = await api<{ csrfToken: string }>('GET', '/api/csrf');
-  setCsrfToken(csrfToken);
+/** Multipart upload of an orbit solution file with its fit fields (blank fields are left out). */
+function uploadSolutionFile(id: number, file: File, fields: Record<string, string>): Promise<Solution> {
   const form = new FormData();
   for (const [k, v] of Object.entries(fields)) if (v.trim() !== '') form.append(k, v.trim());
   form.append('file', file, file.name);
-  let res: Response;
-  try {
-    res = await fetch(`/api/objects/${id}/solutions`, {
-      method: 'POST',
-      credentials: 'same-origin',
-      headers: { Accept: 'application/json', 'x-csrf-token': csrfToken },
-      body: form,
-    });
-  } catch {
-    throw new ApiError(0, 'network', 'Tocsin could not reach the server. Check your connection and try again.');
-  }
-  const body = (await res.json().catch(() => null)) as { error?: { code: string; message: string; details?: unknown } } | null;
-  if (!res.ok) {
-    if (body?.error) throw new ApiError(res.status, body.error.code, body.error.message, body.error.details);
-    throw new ApiError(res.status, `http_${res.status}`, `The server answered ${res.status}`);
-  }
-  return body as unknown as Solution;
+  return postForm<Solution>(`/api/objects/${id}/solutions`, form);
 }
 
 export function useAddSolution(id: number) {

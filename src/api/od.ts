@@ -5,7 +5,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AdesIssue, FitSettingsInput, ObservatoryInput } from '../../shared/schemas/od';
 import type { AdoptFitBody, AstrometryList, FitJob, ObservatoryRow, UploadAstrometryResult } from '../../shared/schemas/odApi';
 import { FINISHED_RUN_STATUSES } from '../../shared/schemas/runs';
-import { api, ApiError, setCsrfToken } from './client';
+import { api, ApiError, postForm } from './client';
 import { objectKeys } from './objects';
 
 export const odKeys = {
@@ -75,33 +75,11 @@ export function astrometryIssues(error: unknown): AdesIssue[] {
   ).map((i) => ({ line: i.line, field: i.field ?? null, message: i.message }));
 }
 
-/**
- * A file goes as multipart (field `file`, up to 5 MB; the JSON body limit of the API is lower), pasted text as JSON.
- * The JSON wrapper in client.ts does not send FormData, so the multipart path fetches a CSRF token itself (as the
- * solution upload in objects.ts does).
- */
-async function uploadAstrometryFile(objectId: number, file: File): Promise<UploadAstrometryResult> {
-  const { csrfToken } = await api<{ csrfToken: string }>('GET', '/api/csrf');
-  setCsrfToken(csrfToken);
+/** A file goes as multipart (field `file`, up to 5 MB; the JSON body limit of the API is lower), pasted text as JSON. */
+function uploadAstrometryFile(objectId: number, file: File): Promise<UploadAstrometryResult> {
   const form = new FormData();
   form.append('file', file, file.name);
-  let res: Response;
-  try {
-    res = await fetch(`/api/objects/${objectId}/astrometry`, {
-      method: 'POST',
-      credentials: 'same-origin',
-      headers: { Accept: 'application/json', 'x-csrf-token': csrfToken },
-      body: form,
-    });
-  } catch {
-    throw new ApiError(0, 'network', 'Tocsin could not reach the server. Check your connection and try again.');
-  }
-  const body = (await res.json().catch(() => null)) as { error?: { code: string; message: string; details?: unknown } } | null;
-  if (!res.ok) {
-    if (body?.error) throw new ApiError(res.status, body.error.code, body.error.message, body.error.details);
-    throw new ApiError(res.status, `http_${res.status}`, `The server answered ${res.status}`);
-  }
-  return body as unknown as UploadAstrometryResult;
+  return postForm<UploadAstrometryResult>(`/api/objects/${objectId}/astrometry`, form);
 }
 
 export type AstrometryUpload = { kind: 'file'; file: File } | { kind: 'text'; text: string };
