@@ -53,6 +53,9 @@ export type AppSubject = SubjectName | TaggedSubject;
 export type AppAbility = MongoAbility<[Action, AppSubject], MongoQuery>;
 export type AppRule = RawRuleOf<AppAbility>;
 
+/** Release states a liaison may read (the wording is locked from approval on; shared/releases/workflow.ts). */
+export const RELEASE_STATES_FOR_LIAISONS = ['approved', 'scheduled', 'published'] as const;
+
 export interface AbilityUser {
   id: number;
   role: Role;
@@ -66,10 +69,13 @@ export function defineAbilityFor(user: AbilityUser | null): AppAbility {
   const { can, build } = new AbilityBuilder<AppAbility>(createMongoAbility);
   if (!user) return build();
 
-  // Everyone signed in: their own account, the health check and releases.
+  // Everyone signed in: their own account, the health check and releases. Liaisons work outside the office: they
+  // see a press release only once reviewers have approved its wording (approved, scheduled, published), never a
+  // draft under discussion or a cancelled one.
   can(['read', 'update'], 'Account', { id: user.id });
   can('read', 'Health');
-  can('read', 'Release');
+  if (user.role === 'liaison') can('read', 'Release', { state: { $in: [...RELEASE_STATES_FOR_LIAISONS] } });
+  else can('read', 'Release');
   // Bulletins (issue 6): the office reads drafts, versions and who received and acknowledged them; liaisons only
   // see what was sent to them (their briefings). Workflow actions are refined per role by shared/bulletins/workflow.ts.
   if (user.role !== 'liaison') can('read', ['Bulletin', 'Distribution']);

@@ -16,7 +16,7 @@ import { actorOf } from './bulletins';
 
 export function releasesRouter({ releases }: Services): Router {
   const router = Router();
-  router.get('/releases', handle({ query: releaseListQuerySchema }, ({ query }) => releases.list(query)));
+  router.get('/releases', handle({ query: releaseListQuerySchema }, ({ query, req }) => releases.list(query, actorOf(req))));
   router.post('/releases', handle({ body: createReleaseBodySchema }, ({ body, req }) => releases.create(body, actorOf(req)), { status: 201 }));
   router.get('/releases/:id', handle({ params: idParamsSchema }, ({ params, req }) => releases.get(params.id, actorOf(req))));
   router.put('/releases/:id', handle({ params: idParamsSchema, body: updateReleaseBodySchema }, ({ params, body, req }) => releases.update(params.id, body, actorOf(req))));
@@ -31,6 +31,6 @@ export function releasesRouter({ releases }: Services): Router {
   );
   router.post('/releases/:id/cancel', handle({ params: idParamsSchema, body: cancelBodySchema }, ({ params, body, req }) => releases.transition(params.id, { action: 'cancel', comment: body.comment }, actorOf(req))));
   router.post('/releases/:id/transitions', handle({ params: idParamsSchema, body: releaseTransitionBodySchema }, ({ params, body, req }) => releases.transition(params.id, body, actorOf(req))));
-  router.get('/releases/:id/versions/:version', handle({ params: releaseVersionParamsSchema }, ({ params }) => releases.lockedVersion(params.id, params.version)));
+  router.get('/releases/:id/versions/:version', handle({ params: releaseVersionParamsSchema }, ({ params, req }) => releases.readableVersion(params.id, params.version, actorOf(req))));
   return router;
 }

@@ -75,6 +75,27 @@ describe('drafting', () => {
 });
 
 describe('review and roles', () => {
+  it('liaisons see a release only once its wording is approved; drafts, reviews and cancelled ones answer 404', async () => {
+    // Rule of shared/abilities.ts (RELEASE_STATES_FOR_LIAISONS); 404 rather than 403 so existence is not disclosed
+    // (RFC 9110 §15.5.5 allows 404 for a resource the server will not reveal).
+    const draft = await createRelease(as, bulletinId, 'Liaison visibility draft');
+    const approved = await approvedRelease(as, bulletinId, 'Liaison visibility approved');
+    const ids = async (c: ApiClient) => ((await c.get('/api/releases')).body.releases as { id: number }[]).map((r) => r.id);
+    expect(await ids(as.liaison)).not.toContain(draft.id);
+    expect(await ids(as.liaison)).toContain(approved.id);
+    expect(await ids(as.analyst)).toEqual(expect.arrayContaining([draft.id, approved.id]));
+    expect((await as.liaison.get(`/api/releases/${draft.id}`)).status).toBe(404);
+    expect((await as.liaison.get(`/api/releases/${approved.id}`)).status).toBe(200);
+    expect((await as.liaison.get(`/api/releases/${approved.id}/versions/1`)).status).toBe(200);
+    expect((await act(as.communications, draft.id, { action: 'submit' })).status).toBe(200);
+    expect((await as.liaison.get(`/api/releases/${draft.id}`)).status).toBe(404); // in review: still internal
+    const cancelled = await as.admin.request('POST', `/api/releases/${approved.id}/cancel`, { body: { comment: 'Superseded by a newer statement.' } });
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200);
+    expect((await as.liaison.get(`/api/releases/${approved.id}`)).status).toBe(404);
+    expect((await as.liaison.get(`/api/releases/${approved.id}/versions/1`)).status).toBe(404);
+    expect(await ids(as.liaison)).not.toContain(approved.id);
+  });
+
   it('refuses what each role may not do, and locks the wording on approval', async () => {
     // Not signed in: 401 on the office API.
     const anon = new ApiClient(srv.url);

@@ -26,6 +26,8 @@ import type {
 } from '../../../shared/schemas/releases';
 import type { Db } from '../../db/client';
 import { bulletins, bulletinVersions, releaseEvents, releases, releaseVersions, stakeholderLists, stakeholderMembers, trackedObjects, users, type ReleaseRow } from '../../db/schema';
+import { subject } from '@casl/ability';
+import { defineAbilityFor } from '../../../shared/abilities';
 import { conflict, forbidden, notFound, unprocessable } from '../../errors';
 import { canonicalJson, sha256Hex } from '../bulletins/canonical';
 import type { Actor } from '../bulletins/service';
@@ -173,6 +175,12 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
     return v;
   }
 
+  /** A release the actor may not read answers as if it did not exist (404), so its existence is not disclosed. */
+  function readable(r: ReleaseRow, actor: Actor): ReleaseRow {
+    if (!defineAbilityFor(actor).can('read', subject('Release', { state: r.state }))) throw notFound('No such release');
+    return r;
+  }
+
   function lockedVersion(releaseId: number, version: number, reader: Reader = db): ReleaseVersion {
     const v = versionRow(releaseId, version, reader);
     return { ...(JSON.parse(v.contentJson) as ReleaseVersionContent), sha256: v.sha256 };
@@ -275,14 +283,16 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
       return () => scheduleListeners.delete(listener);
     },
 
-    list(query: { state?: ReleaseState }): ReleaseListResponse {
+    /** The releases the actor may read (shared/abilities.ts: liaisons only from approval on), newest first. */
+    list(query: { state?: ReleaseState }, actor: Actor): ReleaseListResponse {
       const where: SQL[] = [];
       if (query.state !== undefined) where.push(eq(releases.state, query.state));
-      return { releases: newestFirst(db, releases, where).map((r) => summary(r)) };
+      const ability = defineAbilityFor(actor);
+      return { releases: newestFirst(db, releases, where).filter((r) => ability.can('read', subject('Release', { state: r.state }))).map((r) => summary(r)) };
     },
 
     get(id: number, actor: Actor): Release {
-      return detail(row(id), actor);
+      return detail(readable(row(id), actor), actor);
     },
 
     create(body: { bulletinId: number; version: number; title?: string }, actor: Actor): Release {
@@ -430,6 +440,11 @@ export function createReleaseService(db: Db, mail: MailService, options: Release
     },
 
     lockedVersion,
+    /** A locked version, for an actor who may read the release (404 otherwise). */
+    readableVersion(id: number, version: number, actor: Actor): ReleaseVersion {
+      readable(row(id), actor);
+      return lockedVersion(id, version);
+    },
 
     /** The earliest publication time among scheduled releases (ms), or null. */
     nextPublishAtMs(): number | null {
