@@ -1,39 +1,28 @@
 // Optical astrometry of an object (issue 8): list, upload ADES PSV (multipart field `file`, or JSON
 // {fileName, text}), exclude an observation by hand. A refused file answers
 // 422 {error: {code: 'INVALID_ASTROMETRY', message, issues, details: {issues}}} and nothing is stored.
-import { Router, type ErrorRequestHandler, type RequestHandler } from 'express';
-import multer from 'multer';
+import { Router, type ErrorRequestHandler } from 'express';
 import { z } from 'zod';
 import { idParamsSchema } from '../../shared/schemas/api';
 import { updateObservationBodySchema, uploadAstrometryBodySchema } from '../../shared/schemas/odApi';
-import { HttpError } from '../errors';
+import { singleFileUpload } from '../middleware/upload';
 import { handle, parseRequest } from '../middleware/validate';
 import type { Services } from '../services';
 import { AstrometryRefusedError, astrometryTextOfUpload, MAX_ASTROMETRY_FILE_BYTES } from '../services/od/astrometry';
 
 const observationParamsSchema = z.object({ id: z.coerce.number().int().positive(), obsId: z.coerce.number().int().positive() });
 
-/** Multipart upload of one file in field `file` (memory storage); refusals become INVALID_ASTROMETRY. */
-function singleAstrometryFile(): RequestHandler {
-  const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_ASTROMETRY_FILE_BYTES, files: 1, fields: 5, fieldSize: 1024 } }).single('file');
-  return (req, res, next) => {
-    upload(req, res, (err: unknown) => {
-      if (!err) return next();
-      if (err instanceof multer.MulterError) {
-        const message =
-          err.code === 'LIMIT_FILE_SIZE'
-            ? `The file is larger than ${MAX_ASTROMETRY_FILE_BYTES / 1_000_000} MB`
-            : err.code === 'LIMIT_UNEXPECTED_FILE'
-              ? `Send the ADES file in the multipart field "file" (got "${err.field ?? ''}")`
-              : err.code === 'LIMIT_FILE_COUNT'
-                ? 'Send one file at a time'
-                : err.message;
-        return next(new AstrometryRefusedError([{ line: 0, field: null, message }]));
-      }
-      next(new HttpError(400, 'bad_request', 'The multipart request could not be read'));
-    });
-  };
-}
+/** Multipart upload of one file in field `file`; refusals become INVALID_ASTROMETRY. */
+const singleAstrometryFile = () =>
+  singleFileUpload({
+    limits: { fileSize: MAX_ASTROMETRY_FILE_BYTES, fields: 5, fieldSize: 1024 },
+    messages: {
+      tooLarge: `The file is larger than ${MAX_ASTROMETRY_FILE_BYTES / 1_000_000} MB`,
+      unexpectedField: (field) => `Send the ADES file in the multipart field "file" (got "${field}")`,
+      tooManyFiles: 'Send one file at a time',
+    },
+    refuse: (message) => new AstrometryRefusedError([{ line: 0, field: null, message }]),
+  });
 
 /** The contract's body of a refused file: the issues beside the message (and in details, the API's usual place). */
 const refusedFileAnswer: ErrorRequestHandler = (err, _req, res, next) => {

@@ -1,5 +1,4 @@
-import { Router, type RequestHandler } from 'express';
-import multer from 'multer';
+import { Router } from 'express';
 import { idParamsSchema } from '../../shared/schemas/api';
 import {
   compareQuerySchema,
@@ -11,35 +10,23 @@ import {
   updateObjectBodySchema,
   type SolutionListResponse,
 } from '../../shared/schemas/objects';
-import { HttpError, unprocessable } from '../errors';
+import { unprocessable } from '../errors';
+import { singleFileUpload } from '../middleware/upload';
 import { handle, parseRequest } from '../middleware/validate';
 import type { Services } from '../services';
 import { MAX_SOLUTION_FILE_BYTES, textOfUpload } from '../services/objects';
 
-/** Multipart upload of one file in field `file` (memory storage; refusals become 422 with issues). */
-function singleSolutionFile(): RequestHandler {
-  const upload = multer({
-    storage: multer.memoryStorage(),
-    limits: { fileSize: MAX_SOLUTION_FILE_BYTES, files: 1, fields: 10, fieldSize: 4096 },
-  }).single('file');
-  return (req, res, next) => {
-    upload(req, res, (err: unknown) => {
-      if (!err) return next();
-      if (err instanceof multer.MulterError) {
-        const message =
-          err.code === 'LIMIT_FILE_SIZE'
-            ? `the file is larger than ${MAX_SOLUTION_FILE_BYTES / 1024} kB`
-            : err.code === 'LIMIT_UNEXPECTED_FILE'
-              ? `send the orbit solution in the multipart field "file" (got "${err.field ?? ''}")`
-              : err.code === 'LIMIT_FILE_COUNT'
-                ? 'send one file at a time'
-                : err.message;
-        return next(unprocessable('The orbit solution was refused: nothing was stored', { issues: [{ where: 'file', message }] }));
-      }
-      next(new HttpError(400, 'bad_request', 'The multipart request could not be read'));
-    });
-  };
-}
+/** Multipart upload of one file in field `file`; refusals become 422 with issues. */
+const singleSolutionFile = () =>
+  singleFileUpload({
+    limits: { fileSize: MAX_SOLUTION_FILE_BYTES, fields: 10, fieldSize: 4096 },
+    messages: {
+      tooLarge: `the file is larger than ${MAX_SOLUTION_FILE_BYTES / 1024} kB`,
+      unexpectedField: (field) => `send the orbit solution in the multipart field "file" (got "${field}")`,
+      tooManyFiles: 'send one file at a time',
+    },
+    refuse: (message) => unprocessable('The orbit solution was refused: nothing was stored', { issues: [{ where: 'file', message }] }),
+  });
 
 export function objectsRouter({ objects }: Services): Router {
   const router = Router();
