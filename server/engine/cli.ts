@@ -99,21 +99,16 @@ function positional(args: string[], what: string): string {
   return args[0];
 }
 
-function parse(argv: string[], options: Record<string, { type: 'string' }>) {
+function parse<O extends Record<string, { type: 'string' | 'boolean' }>>(argv: string[], options: O) {
   try {
-    return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
+    return parseArgs({ args: argv, options, allowPositionals: true as const, strict: true as const });
   } catch (err) {
     throw usageError((err as Error).message.replace(/\.$/, ''));
   }
 }
 
 async function loadOrbitFile(path: string): Promise<NormalizedOrbit> {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (err) {
-    throw new CliError('FILE_NOT_READABLE', `cannot read ${path}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
-  }
+  const text = readText(path);
   const { loadOrbitSolution } = await import('./input/solution');
   try {
     return loadOrbitSolution(text);
@@ -283,22 +278,11 @@ async function cmdClassify(argv: string[]): Promise<unknown> {
  * -> the issue 4 item 8 document (server/engine/assess/assess.ts). Progress lines go to stderr only with --progress.
  */
 async function cmdAssess(argv: string[]): Promise<unknown> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        until: { type: 'string' }, clones: { type: 'string' }, seed: { type: 'string' }, method: { type: 'string' },
-        'analysis-date': { type: 'string' }, 'repair-covariance': { type: 'boolean' }, 'max-au': { type: 'string' },
-        body: { type: 'string' }, workers: { type: 'string' }, tolerance: { type: 'string' }, progress: { type: 'boolean' },
-      },
-    });
-  } catch (err) {
-    throw usageError((err as Error).message.replace(/\.$/, ''));
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parse(argv, {
+    until: { type: 'string' }, clones: { type: 'string' }, seed: { type: 'string' }, method: { type: 'string' },
+    'analysis-date': { type: 'string' }, 'repair-covariance': { type: 'boolean' }, 'max-au': { type: 'string' },
+    body: { type: 'string' }, workers: { type: 'string' }, tolerance: { type: 'string' }, progress: { type: 'boolean' },
+  });
   const file = positional(positionals, 'FILE (orbit solution)');
   const until = epochArg('until', values.until);
   const intArg = (name: string, v: string | undefined, dflt: number, min: number) => {
@@ -328,12 +312,7 @@ async function cmdAssess(argv: string[]): Promise<unknown> {
     ? epochArg('analysis-date', values['analysis-date'])
     : parseEpoch(new Date().toISOString().replace(/\.\d+Z$/, 'Z')).tdbDays;
   const bodies = bodyList(values.body, ['earth']);
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (err) {
-    throw new CliError('FILE_NOT_READABLE', `cannot read ${file}: ${(err as NodeJS.ErrnoException).code ?? (err as Error).message}`);
-  }
+  const text = readText(file);
   const { loadOrbitSolution } = await import('./input/solution');
   let orbit: NormalizedOrbit;
   try {
@@ -378,22 +357,11 @@ function readText(path: string): string {
  *   [--no-outliers] [--max-iterations N] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
  */
 async function cmdFit(argv: string[]): Promise<unknown> {
-  let parsed;
-  try {
-    parsed = parseArgs({
-      args: argv,
-      allowPositionals: true,
-      strict: true,
-      options: {
-        observatories: { type: 'string' }, nongrav: { type: 'string' }, epoch: { type: 'string' },
-        'no-outliers': { type: 'boolean' }, 'max-iterations': { type: 'string' }, progress: { type: 'boolean' },
-        law: { type: 'string' },
-      },
-    });
-  } catch (err) {
-    throw usageError((err as Error).message.replace(/\.$/, ''));
-  }
-  const { values, positionals } = parsed;
+  const { values, positionals } = parse(argv, {
+    observatories: { type: 'string' }, nongrav: { type: 'string' }, epoch: { type: 'string' },
+    'no-outliers': { type: 'boolean' }, 'max-iterations': { type: 'string' }, progress: { type: 'boolean' },
+    law: { type: 'string' },
+  });
   const file = positional(positionals, 'FILE.psv (IAU ADES PSV astrometry)');
   if (values.observatories === undefined) throw usageError('missing --observatories FILE.json');
   const terms: ('a1' | 'a2' | 'a3')[] = [];
