@@ -6,28 +6,14 @@ import type { Run } from '../../../shared/schemas/runs';
 import { isFinished, useCancelRun, useCreateRun, useRun } from '../../api/runs';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
+import { JobProgressBar } from '../../components/JobStatus';
 import { formatUtc } from '../objects/format';
 import { RunStatusBadge, progressText } from './RunStatus';
 import { RunResults } from '../../components/results/RunResults';
 
 function ProgressBar({ run }: { run: Run }) {
-  const { done, total } = run.progress;
-  const fraction = run.status === 'done' ? 1 : total > 0 ? Math.min(1, done / total) : 0;
-  return (
-    <div>
-      <div
-        role="progressbar"
-        aria-label="Run progress"
-        aria-valuemin={0}
-        aria-valuemax={100}
-        aria-valuenow={Math.round(fraction * 100)}
-        className="h-3 w-full overflow-hidden rounded-full border border-rule bg-white"
-      >
-        <div className="h-full bg-accent-700 transition-[width]" style={{ width: `${fraction * 100}%` }} />
-      </div>
-      <p className="mt-1 text-sm text-ink-soft" aria-live="polite">{run.status === 'running' ? progressText(run) : run.status === 'queued' ? 'Waiting for the runner…' : ''}</p>
-    </div>
-  );
+  const text = run.status === 'running' ? progressText(run) : run.status === 'queued' ? 'Waiting for the runner…' : '';
+  return <JobProgressBar label="Run progress" status={run.status} done={run.progress.done} total={run.progress.total} text={text} />;
 }
 
 function downloadJson(run: Run) {

@@ -1,17 +1,9 @@
 // Status badge and progress wording of a run (shared by the object page's run list and the run page).
 import type { RunStatus, RunSummary } from '../../../shared/schemas/runs';
-
-const LABELS: Record<RunStatus, string> = { queued: 'Queued', running: 'Running', done: 'Done', failed: 'Failed', cancelled: 'Cancelled' };
-const TONES: Record<RunStatus, string> = {
-  queued: 'bg-accent-50 text-accent-800 border-accent-100',
-  running: 'bg-signal-50 text-signal-700 border-signal-200',
-  done: 'bg-ok-50 text-ok-700 border-ok-700/30',
-  failed: 'bg-danger-50 text-danger-700 border-danger-200',
-  cancelled: 'bg-white text-ink-soft border-rule',
-};
+import { JobStatusBadge } from '../../components/JobStatus';
 
 export function RunStatusBadge({ status }: { status: RunStatus }) {
-  return <span className={`inline-block rounded border px-2 py-0.5 text-xs font-semibold ${TONES[status]}`} data-testid="run-status">{LABELS[status]}</span>;
+  return <JobStatusBadge status={status} testId="run-status" />;
 }
 
 const STAGES: Record<string, string> = { starting: 'starting the engine', linear: 'linear method', lov: 'line of variations', mc: 'Monte Carlo' };
