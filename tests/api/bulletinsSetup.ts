@@ -9,7 +9,7 @@ import { expect } from 'vitest';
 import { assessmentRuns, orbitSolutions, trackedObjects } from '../../server/db/schema';
 import type { BulletinDocument, FigureQuantity } from '../../shared/bulletins/document';
 import { bulletinSchema, type Bulletin } from '../../shared/schemas/bulletins';
-import { DEMO_USERS, type TestServer } from '../helpers/testServer';
+import type { TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -30,15 +30,7 @@ export const FIXTURE_RUNS = JSON.parse(fs.readFileSync(path.join(here, 'fixtures
 
 export const NEA = 'HSO-26-N4';
 
-export async function signedIn(url: string): Promise<Record<string, ApiClient>> {
-  const as: Record<string, ApiClient> = {};
-  for (const u of DEMO_USERS) {
-    const c = new ApiClient(url);
-    expect((await c.signIn(u.email, u.password)).status).toBe(200);
-    as[u.role] = c;
-  }
-  return as;
-}
+export { signedIn } from './signedIn';
 
 export function neaIds(srv: TestServer): { objectId: number; solutionId: number } {
   const obj = srv.db.select().from(trackedObjects).where(eq(trackedObjects.designation, NEA)).get()!;

@@ -24,17 +24,14 @@ import {
 } from '../../shared/schemas/objects';
 import { DEMO_USERS, startTestServer, type TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
+import { signedIn } from './signedIn';
 
 let srv: TestServer;
 const as: Record<string, ApiClient> = {};
 
 beforeAll(async () => {
   srv = await startTestServer();
-  for (const u of DEMO_USERS) {
-    const c = new ApiClient(srv.url);
-    expect((await c.signIn(u.email, u.password)).status).toBe(200);
-    as[u.role] = c;
-  }
+  Object.assign(as, await signedIn(srv.url));
 });
 afterAll(() => srv?.close());
 

@@ -12,6 +12,7 @@ import { errorBodySchema } from '../../shared/schemas/errors';
 import { astrometryListSchema, observatoryRowSchema, storedObservationSchema, uploadAstrometryResultSchema } from '../../shared/schemas/odApi';
 import { DEMO_USERS, startTestServer, type TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
+import { signedIn } from './signedIn';
 
 let srv: TestServer;
 const as: Record<string, ApiClient> = {};
@@ -24,11 +25,7 @@ const SITE_B = { code: 'TQB', name: 'Test site B (invented)', longitudeDeg: 300.
 
 beforeAll(async () => {
   srv = await startTestServer();
-  for (const u of DEMO_USERS) {
-    const c = new ApiClient(srv.url);
-    expect((await c.signIn(u.email, u.password)).status).toBe(200);
-    as[u.role] = c;
-  }
+  Object.assign(as, await signedIn(srv.url));
   const obj = srv.db.select().from(trackedObjects).where(eq(trackedObjects.designation, 'HSO-26-N4')).get()!;
   objectId = obj.id;
   designation = obj.designation;

@@ -23,6 +23,7 @@ import { fitJobSchema, type FitJob } from '../../shared/schemas/odApi';
 import { solutionSchema } from '../../shared/schemas/objects';
 import { DEMO_USERS, startTestServer, type TestServer } from '../helpers/testServer';
 import { ApiClient } from './apiClient';
+import { signedIn } from './signedIn';
 
 const OPM = fs.readFileSync('server/db/demo/hso-26-n4.opm', 'utf8');
 const TRUTH = loadOrbitSolution(OPM);
@@ -57,11 +58,7 @@ function startRunner(opts: Parameters<typeof createFitRunner>[2] = {}): FitRunne
 
 beforeAll(async () => {
   srv = await startTestServer();
-  for (const u of DEMO_USERS) {
-    const c = new ApiClient(srv.url);
-    expect((await c.signIn(u.email, u.password)).status).toBe(200);
-    as[u.role] = c;
-  }
+  Object.assign(as, await signedIn(srv.url));
   for (const s of SITES) expect((await as.admin.request('POST', '/api/observatories', { body: s })).status).toBe(201);
   objectId = srv.db.select().from(trackedObjects).where(eq(trackedObjects.designation, 'HSO-26-N4')).get()!.id;
   const up = await as.analyst.request('POST', `/api/objects/${objectId}/astrometry`, { body: { fileName: 'synthetic.psv', text: arc('HSO-26-N4') } });
