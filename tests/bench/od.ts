@@ -12,17 +12,11 @@
  */
 import { existsSync, readFileSync } from 'node:fs';
 import { fitSettingsSchema, observatoryFileSchema, type Observatory, type OpticalObservation } from '../../shared/schemas/od';
-import { GM_AU3_D2 } from '../../server/engine/constants';
-import { eclipticToEquatorial } from '../../server/engine/frames';
 import { parseAdesPsv } from '../../server/engine/od/ades';
 import { determineOrbit } from '../../server/engine/od/fit';
-import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
-import { utcFromTdbDays } from '../../server/engine/time';
-import { elementsToState } from '../../server/engine/twobody';
+import { nightTimes, syntheticPsv, testOrbit } from '../helpers/odSynthetic';
 
 const REPS = Number(process.env.OD_BENCH_REPS ?? 3);
-const DEG = Math.PI / 180;
-const T0 = 10950.5;
 const SITES: Observatory[] = [
   { code: 'TQA', name: 'Test site A', longitudeDeg: 10, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: 45, heightM: 500 },
   { code: 'TQB', name: 'Test site B', longitudeDeg: 250, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: -30, heightM: 2000 },
@@ -34,14 +28,11 @@ const median = (xs: number[]) => {
 };
 
 function synthetic(nights: number, per: number, span: number, outliers: number[]): OpticalObservation[] {
-  const s = elementsToState({ q: 0.95, e: 0.3, i: 10 * DEG, node: 80 * DEG, argPeri: 200 * DEG, tp: T0 - 40, epoch: T0 }, GM_AU3_D2.sun);
-  const times: number[] = [];
-  for (let n = 0; n < nights; n++) for (let k = 0; k < per; k++) times.push(T0 - span / 2 + (n * span) / (nights - 1) + 0.3 + k * 0.014);
-  const { psv } = synthesizeAdesPsv({
+  const psv = syntheticPsv({
     designation: 'BENCH-1',
-    orbit: { epochTdbDays: T0, positionAu: eclipticToEquatorial(s.r), velocityAuD: eclipticToEquatorial(s.v), nonGrav: null },
+    orbit: testOrbit(),
     observatories: SITES,
-    nights: times.map((t, i) => ({ stn: SITES[i % 2].code, utc: utcFromTdbDays(t).utc })),
+    timesTdbDays: nightTimes(nights, per, span),
     noiseArcsec: 0.4,
     seed: 1,
     outliers: outliers.map((index) => ({ index, offsetArcsec: 8 })),

@@ -11,15 +11,10 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { fitComparisonSchema, fitResultSchema, type Observatory } from '../../shared/schemas/od';
 import { orbitSolutionInputSchema } from '../../shared/schemas/orbit';
 import { runCli } from '../../server/engine/cli';
-import { GM_AU3_D2 } from '../../server/engine/constants';
-import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
-import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
-import { utcFromTdbDays } from '../../server/engine/time';
-import { elementsToState } from '../../server/engine/twobody';
+import { syntheticPsv, testOrbit, TEST_T0 } from '../helpers/odSynthetic';
 
-const DEG = Math.PI / 180;
-const T0 = 10950.5;
+const T0 = TEST_T0;
 const OBSERVATORIES: Observatory[] = [
   { code: 'TQA', name: 'Test site A', longitudeDeg: 10, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: 45, heightM: 500 },
   { code: 'TQB', name: 'Test site B', longitudeDeg: 250, rhoCosPhi: 0.86, rhoSinPhi: -0.5, geodeticLatitudeDeg: null, heightM: null },
@@ -33,14 +28,13 @@ const DEMO_PSV = 'server/db/demo/hso-26-u1.psv';
 const DEMO_OBS = 'server/db/demo/hspdo-observatories.json';
 
 beforeAll(() => {
-  const s = elementsToState({ q: 0.95, e: 0.3, i: 10 * DEG, node: 80 * DEG, argPeri: 200 * DEG, tp: T0 - 40, epoch: T0 }, GM_AU3_D2.sun);
   const times: number[] = [];
   for (let n = 0; n < 8; n++) for (let k = 0; k < 3; k++) times.push(T0 - 15 + n * 4 + 0.3 + k * 0.014);
-  const { psv } = synthesizeAdesPsv({
+  const psv = syntheticPsv({
     designation: 'TEST-CLI',
-    orbit: { epochTdbDays: T0, positionAu: eclipticToEquatorial(s.r), velocityAuD: eclipticToEquatorial(s.v), nonGrav: null },
+    orbit: testOrbit(),
     observatories: OBSERVATORIES,
-    nights: times.map((t, i) => ({ stn: OBSERVATORIES[i % 2].code, utc: utcFromTdbDays(t).utc })),
+    timesTdbDays: times,
     noiseArcsec: 0.4,
     seed: 12,
     outliers: [{ index: 7, offsetArcsec: 9 }],

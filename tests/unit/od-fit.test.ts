@@ -1,21 +1,18 @@
 import { describe, expect, it } from 'vitest';
 import { fitSettingsSchema, orbitDeterminationResultSchema, type Observatory, type OpticalObservation } from '../../shared/schemas/od';
 import { classifyOrbit } from '../../server/engine/classify';
-import { GM_AU3_D2 } from '../../server/engine/constants';
-import { eclipticToEquatorial } from '../../server/engine/frames';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
 import { determineOrbit, FitAbortedError, nightlyDeweighting, OrbitDeterminationError } from '../../server/engine/od/fit';
 import { encounterUncertainty } from '../../server/engine/od/encounter';
 import { cholesky } from '../../server/engine/linalg/cholesky';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
 import { parseAdesPsv } from '../../server/engine/od/ades';
-import { synthesizeAdesPsv } from '../../server/engine/od/synthetic';
 import { fitToSolutionInput, jdText } from '../../server/engine/od/solutionInput';
 import { chiSquareCdf, kolmogorovSmirnov } from '../../server/engine/od/statistics';
 import { RandomStream } from '../../server/engine/risk/random';
-import { parseEpoch, utcFromTdbDays } from '../../server/engine/time';
-import { elementsToState } from '../../server/engine/twobody';
+import { parseEpoch } from '../../server/engine/time';
 import type { Vec3 } from '../../server/engine/vec';
+import { nightTimes, syntheticPsv, testOrbit, TEST_T0, type TestOrbit } from '../helpers/odSynthetic';
 
 // ---------------------------------------------------------------------------------------------------------------
 // Least squares on linear problems (no orbit)
@@ -127,28 +124,21 @@ const OBSERVATORIES: Observatory[] = [
   { code: 'TQB', name: 'Test site B', longitudeDeg: 250, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: -30, heightM: 2000 },
 ];
 
-const DEG = Math.PI / 180;
-const T0 = 10950.5; // 2029-12-24 0h TDB
+const T0 = TEST_T0; // 2029-12-24 0h TDB
 const EPOCH_TEXT = 'JD:2462495.5';
-
-type Truth = { epochTdbDays: number; positionAu: Vec3; velocityAuD: Vec3; nonGrav: { a1: number; a2: number; a3: number; law: 'water-ice' | 'inverse-square' } | null };
-
-function truthOrbit(nonGrav: Truth['nonGrav'] = null): Truth {
-  const s = elementsToState({ q: 0.95, e: 0.3, i: 10 * DEG, node: 80 * DEG, argPeri: 200 * DEG, tp: T0 - 40, epoch: T0 }, GM_AU3_D2.sun);
-  return { epochTdbDays: T0, positionAu: eclipticToEquatorial(s.r), velocityAuD: eclipticToEquatorial(s.v), nonGrav };
-}
 
 /**
  * Observations of a known orbit through the engine: synthesizeAdesPsv (E1's synthetic.ts: observer.ts + predict.ts,
  * n-body with light time, seeded Gaussian noise of `noise` arcsec, planted outliers of the given size in a random
- * direction), written as IAU ADES PSV and read back with parseAdesPsv, so the whole input chain is exercised.
+ * direction; tests/helpers/odSynthetic.ts), written as IAU ADES PSV and read back with parseAdesPsv, so the whole
+ * input chain is exercised.
  */
-function syntheticArc(truth: Truth, times: number[], noise: number, seed: number, outliers: Record<number, number> = {}): OpticalObservation[] {
-  const { psv } = synthesizeAdesPsv({
+function syntheticArc(truth: TestOrbit, times: number[], noise: number, seed: number, outliers: Record<number, number> = {}): OpticalObservation[] {
+  const psv = syntheticPsv({
     designation: 'TEST-1',
     orbit: truth,
     observatories: OBSERVATORIES,
-    nights: times.map((t, i) => ({ stn: OBSERVATORIES[i % 2].code, utc: utcFromTdbDays(t).utc })),
+    timesTdbDays: times,
     noiseArcsec: noise,
     seed,
     outliers: Object.entries(outliers).map(([i, o]) => ({ index: Number(i), offsetArcsec: o })),
@@ -159,15 +149,8 @@ function syntheticArc(truth: Truth, times: number[], noise: number, seed: number
   return parsed.observations;
 }
 
-/** nights x perNight observations, 20 min apart, evenly spread over `spanDays` centred on T0. */
-function nightTimes(nights: number, perNight: number, spanDays: number): number[] {
-  const out: number[] = [];
-  for (let n = 0; n < nights; n++) for (let k = 0; k < perNight; k++) out.push(T0 - spanDays / 2 + (n * spanDays) / (nights - 1) + 0.3 + k * 0.014);
-  return out;
-}
-
 /** (x − x_true)ᵀ Γ⁻¹ (x − x_true) over the six state parameters. */
-function stateChiSquare(fit: { positionAu: number[]; velocityAuD: number[]; covariance: number[][] | null }, truth: Truth): number {
+function stateChiSquare(fit: { positionAu: number[]; velocityAuD: number[]; covariance: number[][] | null }, truth: TestOrbit): number {
   const d = [...fit.positionAu.map((x, i) => x - truth.positionAu[i]), ...fit.velocityAuD.map((x, i) => x - truth.velocityAuD[i])];
   const cov = Float64Array.from(fit.covariance!.slice(0, 6).flatMap((r) => r.slice(0, 6)));
   const sol = solveNormal(cov, Float64Array.from(d), 6, false)!;
@@ -212,7 +195,7 @@ describe('encounter uncertainty (encounter.ts) against central differences', () 
     () => {
       // σ² = Σ_k (∂f/∂p · L_k)² for Γ = L Lᵀ (linear propagation; common practice, no source). The derivative along
       // each column L_k is taken by central differences of the full n-body closest approach with steps ±0.1 L_k.
-      const truth = truthOrbit();
+      const truth = testOrbit();
       const obs = syntheticArc(truth, nightTimes(8, 2, 30), 0.5, 5);
       const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) }, { skipEncounter: true });
       const g = r.gravityOnly;
@@ -252,7 +235,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       // least-squares theory; Milani & Gronchi 2010 ch. 5 [M via METHODS §9.1]). Checks at a stated level:
       // - the mean of 30 values is within 3 standard errors of 6 (sd of chi²_6 is √12, so 3·√(12/30) = 1.9);
       // - Kolmogorov–Smirnov against the chi²_6 CDF does not reject at the 1 % level.
-      const truth = truthOrbit();
+      const truth = testOrbit();
       const times = nightTimes(6, 3, 20);
       const settings = fitSettingsSchema.parse({ epoch: EPOCH_TEXT, rejectOutliers: false });
       const chis: number[] = [];
@@ -271,7 +254,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   );
 
   it('produces a result that satisfies the shared schema, with consistent RMS, chi-square and degrees of freedom', () => {
-    const truth = truthOrbit();
+    const truth = testOrbit();
     const obs = syntheticArc(truth, nightTimes(6, 3, 20), 0.5, 99);
     const r = determineOrbit({ observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT }) }, { skipEncounter: true });
     expect(orbitDeterminationResultSchema.safeParse(r).success).toBe(true);
@@ -302,7 +285,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       // A2 = 2e-7 AU/d² (water-ice law), a strong but comet-like transverse acceleration; 20 nights x 3 over 120
       // days, 0.5" noise. (Seeds 3, 4, 5 all pass; 4 is used. With this arc the gravity-only fit rejects ~15 of
       // the 60 observations its model cannot fit, which the non-grav fit recovers.)
-      const truth = truthOrbit({ a1: 0, a2: 2e-7, a3: 0, law: 'water-ice' });
+      const truth = testOrbit({ a1: 0, a2: 2e-7, a3: 0, law: 'water-ice' });
       const obs = syntheticArc(truth, nightTimes(20, 3, 120), 0.5, 4);
       const r = determineOrbit(
         { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT, nonGravTerms: ['a2'] }) },
@@ -330,7 +313,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   );
 
   it('rejects injected outliers and recovers the clean observations (METHODS §9.1 rule)', () => {
-    const truth = truthOrbit();
+    const truth = testOrbit();
     const injected = { 5: 10, 20: 8, 33: 6 }; // arcsec in a random direction: 20, 16, 12 sigma
     const obs = syntheticArc(truth, nightTimes(12, 3, 36), 0.5, 7, injected);
     const stages: string[] = [];
@@ -365,7 +348,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   });
 
   it('clear errors: too few observations, one night, unknown observatory, bad epoch; cancellation; progress stages', () => {
-    const truth = truthOrbit();
+    const truth = testOrbit();
     const obs = syntheticArc(truth, nightTimes(4, 3, 10), 0.5, 1);
     const settings = fitSettingsSchema.parse({});
     const run = (o: OpticalObservation[], s = settings) => () => determineOrbit({ observations: o, observatories: OBSERVATORIES, settings: s }, { skipEncounter: true });
@@ -404,7 +387,7 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
   it(
     'encounter uncertainty and the fit as an orbit solution (loads back through the engine input with the same state)',
     () => {
-      const truth = truthOrbit();
+      const truth = testOrbit();
       const obs = syntheticArc(truth, nightTimes(8, 2, 30), 0.5, 5);
       const stages: string[] = [];
       const r = determineOrbit(
