@@ -27,13 +27,13 @@
  * there are no hits); linear and LOV (both approximations without sampling error) differing by more than a factor of
  * 2 when either is above 1e-12 (Tocsin tolerance, common practice, no source).
  */
-import { readFileSync } from 'node:fs';
 import { classifyOrbit } from '../classify';
 import type { CloseApproach } from '../dynamics';
 import { ChebyshevEphemeris, FRAME_TIE_DESCRIPTION } from '../ephemeris';
 import { CovarianceError, validateCovariance, type CovarianceRepair } from '../linalg';
 import { assessConsequences, binomialEstimate, palermoCumulative, palermoRating, torinoMax, torinoRating } from '../risk';
 import { tdbJdFromDays, utcFromTdbDays } from '../time';
+import { engineVersion } from '../version';
 import { approachesOf, linearAssessment, type LinearApproachResult, type SolutionPoint, type WorkingCovariance } from './linear';
 import { lovAssessment, type LovResult, type LovWindow } from './lov';
 import type { AssessHooks, AssessOptions, McResult, McWindow, OrbitSolution, RunMonteCarlo } from './types';
@@ -46,15 +46,6 @@ export class AssessError extends Error {
   ) {
     super(message);
     this.name = 'AssessError';
-  }
-}
-
-function engineVersion(): string {
-  try {
-    const pkg = JSON.parse(readFileSync(new URL('../../../package.json', import.meta.url), 'utf8')) as { version?: string };
-    return `tocsin-engine ${pkg.version ?? 'unknown'} (Engine II)`;
-  } catch {
-    return 'tocsin-engine (Engine II)';
   }
 }
 
@@ -383,7 +374,7 @@ export async function assess(solution: OrbitSolution, opts: AssessOptions, hooks
     analysisDateUtc: utcFromTdbDays(opts.analysisTdbDays).utc,
     provenance: {
       inputSha256: solution.source.inputSha256,
-      engineVersion: engineVersion(),
+      engineVersion: engineVersion('Engine II'),
       ephemeris: `Chebyshev cache of VSOP87B (planets) and ELP/MPP02 (Moon), astronomia; ${FRAME_TIE_DESCRIPTION}`,
       integrator: 'IAS15 (15th-order Gauss-Radau, Pham-Rein-Spiegel 2024 step control), variational equations on the same steps',
       tolerance: opts.tolerance ?? 1e-9,

@@ -24,7 +24,6 @@
  * (up to MAX_START_CANDIDATES) are tried. A triple whose Gauss step fails (degenerate, no root) is skipped.
  */
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
 import {
   DEFAULT_OBSERVATION_SIGMA_ARCSEC,
   type FitResult,
@@ -46,6 +45,7 @@ import { EpochFormatError, parseEpoch, TimeScaleError, tdbJdFromDays } from '../
 import { keplerUniversal } from '../twobody/universal';
 import { stateToElements } from '../twobody/elements';
 import type { Vec3 } from '../vec';
+import { engineVersion } from '../version';
 import { compareFits } from './compare';
 import { encounterUncertainty } from './encounter';
 import { GaussError, gaussMethod, type GaussSolution } from './gauss';
@@ -118,15 +118,6 @@ export const MAX_START_CANDIDATES = 3;
 
 const STATE_PARAMS = ['x', 'y', 'z', 'vx', 'vy', 'vz'] as const;
 const DEG = 180 / Math.PI;
-
-function engineVersion(): string {
-  try {
-    const pkg = JSON.parse(readFileSync(new URL('../../../package.json', import.meta.url), 'utf8')) as { version?: string };
-    return `tocsin-engine ${pkg.version ?? 'unknown'} (orbit determination)`;
-  } catch {
-    return 'tocsin-engine (orbit determination)';
-  }
-}
 
 const sha256 = (text: string) => createHash('sha256').update(text, 'utf8').digest('hex');
 
@@ -746,7 +737,7 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   const comparison = ng ? compareFits(grav.result, ng.result, terms, { gravityOnly: grav.plainChi2, nonGrav: ng.plainChi2 }) : null;
   const stations = [...new Set(usable.map((i) => observations[i].stn))].sort();
   return {
-    engineVersion: engineVersion(),
+    engineVersion: engineVersion('orbit determination'),
     observationsSha256: sha256(JSON.stringify(observations)),
     observatoriesSha256: sha256(JSON.stringify(observatories)),
     settings,
