@@ -7,6 +7,7 @@ import type { Residual } from '../../../shared/schemas/od';
 import type { FitJob } from '../../../shared/schemas/odApi';
 import { isFitFinished, useAstrometry, useCancelFit, useFit } from '../../api/od';
 import { useAppAbility } from '../../auth/useAppAbility';
+import { downloadBlob, fileSafe } from '../../components/results/download';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
 import { formatUtc } from '../objects/format';
 import { odAccess } from './access';
@@ -19,12 +20,7 @@ import { ResidualPlots } from './ResidualPlots';
 import { ResidualTable } from './ResidualTable';
 
 function downloadJson(fit: FitJob) {
-  const url = URL.createObjectURL(new Blob([JSON.stringify(fit.result, null, 2)], { type: 'application/json' }));
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = `tocsin-fit-${fit.id}-${fit.designation.replace(/[^A-Za-z0-9_-]+/g, '_')}.json`;
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
+  downloadBlob(`tocsin-fit-${fit.id}-${fileSafe(fit.designation)}.json`, new Blob([JSON.stringify(fit.result, null, 2)], { type: 'application/json' }));
 }
 
 /**

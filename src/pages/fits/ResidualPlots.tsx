@@ -4,18 +4,10 @@
 import { useState } from 'react';
 import type { OrbitDeterminationResult, Residual } from '../../../shared/schemas/od';
 import { residualPoints, residualRangeArcsec, residualsSvg } from '../../../shared/plots';
+import { downloadBlob } from '../../components/results/download';
 import { FIT_LABELS } from './format';
 
 type View = 'both' | 'gravity-only' | 'non-gravitational';
-
-function download(svg: string, name: string) {
-  const url = URL.createObjectURL(new Blob([svg], { type: 'image/svg+xml' }));
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
-}
 
 export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDeterminationResult; excluded?: (r: Residual) => boolean; fileStem: string }) {
   const fits = [result.gravityOnly, ...(result.nonGrav ? [result.nonGrav] : [])];
@@ -95,7 +87,7 @@ export function ResidualPlots({ result, excluded, fileStem }: { result: OrbitDet
                 Observed − computed, arcsec; RA residuals multiplied by cos(Dec).{fits.length > 1 ? ' Both fits share the time axis, vertical scale and station colours.' : ''}
                 {zoomUsed ? ' Scaled to the used points: triangles on an edge are points beyond it.' : ''}
               </span>
-              <button type="button" className="text-accent-700 underline" onClick={() => download(svg, `${fileStem}-${label}-residuals.svg`)}>
+              <button type="button" className="text-accent-700 underline" onClick={() => downloadBlob(`${fileStem}-${label}-residuals.svg`, new Blob([svg], { type: 'image/svg+xml' }))}>
                 Download SVG
               </button>
             </figcaption>

@@ -3,6 +3,7 @@
 // Sortable by any column, filtered by station and status.
 import { useState } from 'react';
 import type { FitResult, Residual } from '../../../shared/schemas/od';
+import { downloadBlob } from '../../components/results/download';
 import { SelectField } from '../../components/ui';
 import { ExcludeDialog, type ExcludeTarget } from '../astrometry/ExcludeDialog';
 import { formatObsTime } from '../astrometry/format';
@@ -20,15 +21,6 @@ const COLUMNS: { key: SortKey; label: string }[] = [
 
 const value = (r: Residual, k: SortKey): number | string =>
   k === 'time' ? r.obsTimeTdbDays : k === 'stn' ? r.stn : k === 'ra' ? r.raCosDecArcsec : k === 'dec' ? r.decArcsec : k === 'chi' ? r.chiSquare : r.status;
-
-function downloadCsv(text: string, name: string) {
-  const url = URL.createObjectURL(new Blob([text], { type: 'text/csv' }));
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
-}
 
 /** When the user may exclude observations: the fit's residual.index -> stored observation id, and those excluded now. */
 export type ResidualExclusion = { objectId: number; observationIds: number[]; excludedIds: Set<number> };
@@ -57,7 +49,7 @@ export function ResidualTable({ fits, excluded, fileStem, exclusion }: { fits: F
           <h2 id="residual-table-heading" className="text-lg font-semibold">Residual table</h2>
           <p className="text-sm text-ink-soft">
             {rows.length} of {fit.residuals.length} observations shown · {fit.residuals.filter((r) => r.status === 'rejected').length} rejected by the χ² rule ·{' '}
-            <button type="button" className="text-accent-700 underline" onClick={() => downloadCsv(residualsCsv(rows), `${fileStem}-${fit.label}-residuals.csv`)}>
+            <button type="button" className="text-accent-700 underline" onClick={() => downloadBlob(`${fileStem}-${fit.label}-residuals.csv`, new Blob([residualsCsv(rows)], { type: 'text/csv' }))}>
               Download these rows (CSV)
             </button>
           </p>

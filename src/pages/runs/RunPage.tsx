@@ -10,6 +10,7 @@ import { JobProgressBar } from '../../components/JobStatus';
 import { formatUtc } from '../objects/format';
 import { RunStatusBadge, progressText } from './RunStatus';
 import { RunResults } from '../../components/results/RunResults';
+import { downloadBlob, fileSafe } from '../../components/results/download';
 
 function ProgressBar({ run }: { run: Run }) {
   const text = run.status === 'running' ? progressText(run) : run.status === 'queued' ? 'Waiting for the runner…' : '';
@@ -17,13 +18,7 @@ function ProgressBar({ run }: { run: Run }) {
 }
 
 function downloadJson(run: Run) {
-  const blob = new Blob([JSON.stringify(run.result, null, 2)], { type: 'application/json' });
-  const url = URL.createObjectURL(blob);
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = `tocsin-run-${run.id}-${run.objectDesignation.replace(/[^A-Za-z0-9_-]+/g, '_')}.json`;
-  a.click();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
+  downloadBlob(`tocsin-run-${run.id}-${fileSafe(run.objectDesignation)}.json`, new Blob([JSON.stringify(run.result, null, 2)], { type: 'application/json' }));
 }
 
 const PROVENANCE_KEYS: [string, string][] = [
