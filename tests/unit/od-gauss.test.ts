@@ -96,20 +96,27 @@ describe('Gauss heliocentric (synthetic two-body case, light time; METHODS §9.3
   // an Apollo-type orbit (J2000 ecliptic rotated into ICRF is not needed: Gauss works in any inertial frame)
   const t0 = 9500; // TDB days since J2000
   const truth = elementsToState({ q: 0.9, e: 0.35, i: 12 * DEG, node: 40 * DEG, argPeri: 250 * DEG, tp: t0 - 20, epoch: t0 }, mu);
-  const makeObs = (times: number[]): GaussObservation[] =>
+  type State = { r: Vec3; v: Vec3 };
+  /** Geocentric lines of sight of `orbit` (its state at t0) seen from the Earth's centre at `times`. */
+  const makeObs = (times: number[], orbit: State = truth): GaussObservation[] =>
     times.map((t) => {
       const earth = seriesState('earth', t).positionAu;
       // light-time iteration: the object is seen where it was at t − ρ/c
       let lt = 0;
       let rho: Vec3 = [0, 0, 0];
       for (let k = 0; k < 5; k++) {
-        const p = keplerUniversal(truth.r, truth.v, t - lt - t0, mu).r;
+        const p = keplerUniversal(orbit.r, orbit.v, t - lt - t0, mu).r;
         rho = [p[0] - earth[0], p[1] - earth[1], p[2] - earth[2]];
         lt = Math.hypot(...rho) / C_AU_D;
       }
       const n = Math.hypot(...rho);
       return { time: t, observerPosition: earth, lineOfSight: [rho[0] / n, rho[1] / n, rho[2] / n] };
     });
+  /** Distance (AU) of a solution's position from `orbit` at the solution's epoch. */
+  const positionErrorAu = (sol: { epoch: number; position: Vec3 | number[] }, orbit: State = truth): number => {
+    const tr = keplerUniversal(orbit.r, orbit.v, sol.epoch - t0, mu);
+    return Math.hypot(sol.position[0] - tr.r[0], sol.position[1] - tr.r[1], sol.position[2] - tr.r[2]);
+  };
 
   it('recovers the true state at t2 − ρ2/c to 1e-9 AU among its admissible roots (arc of 40 days)', () => {
     // Near-singular geometry on purpose: the object is beyond the Sun (range ~1.83 AU) and the polynomial has two
@@ -121,43 +128,23 @@ describe('Gauss heliocentric (synthetic two-body case, light time; METHODS §9.3
     // three positive roots; the largest (~9 AU) gives negative ranges and is not admissible
     expect(res.roots).toHaveLength(3);
     expect(res.admissibleRoots).toEqual(res.roots.slice(0, 2));
-    const errs = res.solutions.map((s) => {
-      const truthAt = keplerUniversal(truth.r, truth.v, s.epoch - t0, mu);
-      return Math.hypot(s.position[0] - truthAt.r[0], s.position[1] - truthAt.r[1], s.position[2] - truthAt.r[2]);
-    });
+    const errs = res.solutions.map((s) => positionErrorAu(s));
     expect(Math.min(...errs)).toBeLessThan(1e-9);
     const best = res.solutions[errs.indexOf(Math.min(...errs))];
     const truthAt = keplerUniversal(truth.r, truth.v, best.epoch - t0, mu);
     for (let i = 0; i < 3; i++) expect(Math.abs(best.velocity[i] - truthAt.v[i])).toBeLessThan(1e-10);
     // without the light-time correction the answer is off by far more (the correction matters: METHODS §9.3)
     const plain = gaussMethod(obs, { mu, speedOfLight: null });
-    const plainErr = Math.min(...plain.solutions.map((s) => {
-      const tr = keplerUniversal(truth.r, truth.v, s.epoch - t0, mu);
-      return Math.hypot(s.position[0] - tr.r[0], s.position[1] - tr.r[1], s.position[2] - tr.r[2]);
-    }));
+    const plainErr = Math.min(...plain.solutions.map((s) => positionErrorAu(s)));
     expect(plainErr).toBeGreaterThan(1e-6);
   });
 
   it('a second geometry (range 0.76 AU, 13-day arc): the true orbit among the solutions, no duplicates', () => {
     const tOpp = 9660;
     const near = elementsToState({ q: 1.05, e: 0.25, i: 8 * DEG, node: 200 * DEG, argPeri: 61 * DEG, tp: tOpp - 30, epoch: t0 }, mu);
-    const obs = [tOpp - 6, tOpp, tOpp + 7].map((t): GaussObservation => {
-      const earth = seriesState('earth', t).positionAu;
-      let lt = 0;
-      let rho: Vec3 = [0, 0, 0];
-      for (let k = 0; k < 5; k++) {
-        const p = keplerUniversal(near.r, near.v, t - lt - t0, mu).r;
-        rho = [p[0] - earth[0], p[1] - earth[1], p[2] - earth[2]];
-        lt = Math.hypot(...rho) / C_AU_D;
-      }
-      const n = Math.hypot(...rho);
-      return { time: t, observerPosition: earth, lineOfSight: [rho[0] / n, rho[1] / n, rho[2] / n] };
-    });
+    const obs = makeObs([tOpp - 6, tOpp, tOpp + 7], near);
     const res = gaussMethod(obs, { mu, speedOfLight: C_AU_D, maxIterations: 200 });
-    const errs = res.solutions.map((s) => {
-      const tr = keplerUniversal(near.r, near.v, s.epoch - t0, mu);
-      return Math.hypot(s.position[0] - tr.r[0], s.position[1] - tr.r[1], s.position[2] - tr.r[2]);
-    });
+    const errs = res.solutions.map((s) => positionErrorAu(s, near));
     expect(Math.min(...errs)).toBeLessThan(1e-9);
     const best = res.solutions[errs.indexOf(Math.min(...errs))];
     expect(best.converged).toBe(true);
