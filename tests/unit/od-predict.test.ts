@@ -40,6 +40,27 @@ const SITES: Observatory[] = [
   { code: 'HSB', name: 'B', longitudeDeg: 289.27, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: -30.17, heightM: 2200 },
 ];
 
+/**
+ * A solar-system body treated as a test particle: its ephemeris state at t, carried back over the light time with the
+ * two-body model and seen from the Earth's centre at t. Also returns the two states (for geometric comparisons).
+ */
+function predictBodyFromGeocentre(eph: ChebyshevEphemeris, body: 'mars' | 'moon', t: number) {
+  const state = new Float64Array(6), earth = new Float64Array(6);
+  eph.stateInto(bodyIndex(body), t, state);
+  eph.stateInto(EARTH_INDEX, t, earth);
+  const [p] = predictAstrometry({
+    epochTdbDays: t,
+    positionAu: [state[0], state[1], state[2]],
+    velocityAuD: [state[3], state[4], state[5]],
+    nonGrav: null,
+    model: 'two-body',
+    observations: [{ obsTimeTdbDays: t, observerPositionAu: [earth[0], earth[1], earth[2]], observerVelocityAuD: [earth[3], earth[4], earth[5]] }],
+    partials: false,
+    ephemeris: eph,
+  });
+  return { p, state, earth };
+}
+
 describe('predictAstrometry versus swetest astrometric positions', () => {
   it('Mars as a test particle (two-body over the light time only), geocentric: matches swetest -noaberr -nodefl', () => {
     // Mars's heliocentric state at the observation time from our ephemeris; predictAstrometry propagates it back
@@ -48,21 +69,9 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
     // ≤ ~0.1″ expected; the light-time shift itself is 10–40″, so a wrong sign or a missing term would show.
     const epochs = [8100.3, 8470.6, 9002.15, 9555.9, 10120.45];
     const eph = ChebyshevEphemeris.build(Math.min(...epochs) - 2, Math.max(...epochs) + 2);
-    const mars = new Float64Array(6), earth = new Float64Array(6);
     let worst = 0, worstShift = Infinity;
     for (const t of epochs) {
-      eph.stateInto(bodyIndex('mars'), t, mars);
-      eph.stateInto(EARTH_INDEX, t, earth);
-      const [p] = predictAstrometry({
-        epochTdbDays: t,
-        positionAu: [mars[0], mars[1], mars[2]],
-        velocityAuD: [mars[3], mars[4], mars[5]],
-        nonGrav: null,
-        model: 'two-body',
-        observations: [{ obsTimeTdbDays: t, observerPositionAu: [earth[0], earth[1], earth[2]], observerVelocityAuD: [earth[3], earth[4], earth[5]] }],
-        partials: false,
-        ephemeris: eph,
-      });
+      const { p } = predictBodyFromGeocentre(eph, 'mars', t);
       const jdTt = jdTtFromTdbDays(t);
       const ref = swetestSpherical({ body: 'mars', jdTt, place: 'astrometric' });
       const geom = swetestSpherical({ body: 'mars', jdTt, place: 'geometric' });
@@ -88,16 +97,9 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
     // the Earth's pull changes the Moon's position by ½ a τ² ≈ 2 mm in 1.3 s (computed).
     const epochs = [8100.3, 9002.15, 9555.9, 10120.45];
     const eph = ChebyshevEphemeris.build(Math.min(...epochs) - 2, Math.max(...epochs) + 2);
-    const moon = new Float64Array(6), earth = new Float64Array(6);
     let worst = 0, smallest = Infinity;
     for (const t of epochs) {
-      eph.stateInto(bodyIndex('moon'), t, moon);
-      eph.stateInto(EARTH_INDEX, t, earth);
-      const [p] = predictAstrometry({
-        epochTdbDays: t, positionAu: [moon[0], moon[1], moon[2]], velocityAuD: [moon[3], moon[4], moon[5]], nonGrav: null,
-        model: 'two-body', partials: false, ephemeris: eph,
-        observations: [{ obsTimeTdbDays: t, observerPositionAu: [earth[0], earth[1], earth[2]], observerVelocityAuD: [earth[3], earth[4], earth[5]] }],
-      });
+      const { p, state: moon, earth } = predictBodyFromGeocentre(eph, 'moon', t);
       const g = [moon[0] - earth[0], moon[1] - earth[1], moon[2] - earth[2]];
       const gRa = Math.atan2(g[1], g[0]), gDec = Math.asin(g[2] / Math.hypot(g[0], g[1], g[2]));
       const ours = [wrapPi(p.raRad - gRa) * Math.cos(gDec) / ARCSEC, (p.decRad - gDec) / ARCSEC];
