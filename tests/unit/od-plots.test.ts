@@ -316,3 +316,17 @@ describe('dateTicks on a four-month arc', () => {
     expect(t.map((x) => new Date(x).toISOString().slice(0, 10))).toEqual(['2026-06-01', '2026-07-01', '2026-08-01', '2026-09-01', '2026-10-01']);
   });
 });
+
+describe('uncertainty columns in scientific notation (fit comparison)', () => {
+  // Significant-digit rounding as Number.prototype.toExponential (ECMA-262 §21.1.3.2); the column reads alike
+  // whatever the magnitude (common practice, no source).
+  it('writes every value as mantissa x 10^exponent with the given significant digits', async () => {
+    const { formatScientific } = await import('../../src/pages/objects/format');
+    expect(formatScientific(0.0011604, 3)).toBe('1.16×10⁻³');
+    expect(formatScientific(7.5708e-6, 3)).toBe('7.57×10⁻⁶');
+    expect(formatScientific(-2.5e12, 2)).toBe('-2.5×10¹²');
+    expect(formatScientific(2.5, 3)).toBe('2.50');
+    expect(formatScientific(0, 3)).toBe('0');
+    expect(formatScientific(null, 3)).toBe('—');
+  });
+});

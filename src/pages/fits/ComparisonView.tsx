@@ -5,8 +5,11 @@
 import type { FitComparison, FitResult } from '../../../shared/schemas/od';
 import { CAUTION_TEXT } from '../../components/CautionFooter';
 import { Card } from '../../components/ui';
-import { formatNumber, formatRatio } from '../objects/format';
+import { formatNumber, formatRatio, formatScientific } from '../objects/format';
 import { elementLabel, fixed, formatP } from './format';
+
+/** Encounter distances and sigmas: whole kilometres grouped by thousands (180,015,456), small values to 4 digits. */
+const encounterText = (x: number) => (Math.abs(x) >= 1000 ? Math.round(x).toLocaleString('en-US') : formatNumber(x, 4));
 
 /** A significance in sigma: one decimal from 1 up, two significant digits below (0.042 σ, not 0.0 σ). */
 const sigmaText = (x: number) => (!Number.isFinite(x) ? '—' : `${Math.abs(x) >= 1 ? x.toFixed(1) : Number(x.toPrecision(2))} σ`);
@@ -100,8 +103,8 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
               {comparison.elementSigmas.map((e) => (
                 <tr key={e.element} className="border-t border-rule">
                   <th scope="row" className="py-1 pr-3 text-left font-medium">{elementLabel(e.element)}</th>
-                  <td className="py-1 pr-3">{formatNumber(e.gravityOnly, 3)}</td>
-                  <td className="py-1 pr-3">{formatNumber(e.nonGrav, 3)}</td>
+                  <td className="py-1 pr-3">{formatScientific(e.gravityOnly, 3)}</td>
+                  <td className="py-1 pr-3">{formatScientific(e.nonGrav, 3)}</td>
                   <td className="py-1">{formatRatio(e.ratio)}</td>
                 </tr>
               ))}
@@ -140,8 +143,8 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
                 ).map(([label, get, ratio]) => (
                   <tr key={label} className="border-t border-rule">
                     <th scope="row" className="py-1 pr-3 text-left font-medium">{label}</th>
-                    <td className="py-1 pr-3">{g ? formatNumber(get(g), 4) : '—'}</td>
-                    <td className="py-1 pr-3">{n ? formatNumber(get(n), 4) : '—'}</td>
+                    <td className="py-1 pr-3">{g ? encounterText(get(g)) : '—'}</td>
+                    <td className="py-1 pr-3">{n ? encounterText(get(n)) : '—'}</td>
                     <td className="py-1">{ratio && g && n && get(g) > 0 ? formatRatio(get(n) / get(g)) : ''}</td>
                   </tr>
                 ))}

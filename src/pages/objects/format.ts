@@ -23,6 +23,14 @@ export function formatNumber(x: number | null | undefined, digits = 6): string {
   return Number(x.toPrecision(digits)).toString();
 }
 
+/** Always in scientific notation with `digits` significant digits (columns of uncertainties read alike). */
+export function formatScientific(x: number | null | undefined, digits = 3): string {
+  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
+  if (x === 0) return '0';
+  const [m, e] = x.toExponential(digits - 1).split('e');
+  return e === '+0' ? m : `${m}×10${superscript(e.replace('+', ''))}`;
+}
+
 export function formatSigma(x: number | null | undefined): string {
   return x === null || x === undefined ? '—' : `± ${formatNumber(x, 3)}`;
 }
