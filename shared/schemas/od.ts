@@ -110,6 +110,20 @@ export type NonGravTerm = z.infer<typeof nonGravTermSchema>;
 /** Default uncertainty of an observation without rmsRA/rmsDec, arcsec (common practice, no source). */
 export const DEFAULT_OBSERVATION_SIGMA_ARCSEC = 1.0;
 
+/** Largest analyst sigma for a station (arcsec): beyond a minute of arc the observations carry no useful weight. */
+export const MAX_STATION_SIGMA_ARCSEC = 60;
+
+/** One station's analyst-set sigma (arcsec), used for RA·cos(dec) and Dec of all its observations in a fit. */
+export const stationWeightSchema = z.strictObject({
+  stn: observatoryCodeSchema,
+  sigmaArcsec: z
+    .number({ error: 'Sigma: enter a number of arcseconds' })
+    .refine(Number.isFinite, 'Sigma must be a finite number of arcseconds')
+    .refine((v) => v > 0, 'Sigma must be greater than 0 arcsec')
+    .refine((v) => v <= MAX_STATION_SIGMA_ARCSEC, `Sigma must be at most ${MAX_STATION_SIGMA_ARCSEC} arcsec`),
+});
+export type StationWeight = z.infer<typeof stationWeightSchema>;
+
 export const fitSettingsSchema = z.strictObject({
   /** Solution epoch; default: the middle of the arc rounded to 0h TDB. */
   epoch: epochTextSchema.nullable().default(null),
@@ -125,6 +139,24 @@ export const fitSettingsSchema = z.strictObject({
   initialSolutionId: z.number().int().positive().nullable().default(null),
   /** Upper bound on differential-correction iterations per fit. */
   maxIterations: z.number().int().min(1).max(100).default(25),
+  /**
+   * Analyst reweighting of whole stations (METHODS.md §9.1 weights): observations of a listed station use
+   * sigmaArcsec for both RA·cos(dec) and Dec, correlation dropped, instead of their reported rmsRA/rmsDec; the
+   * nightly de-weighting still applies on top. [] = reported uncertainties everywhere (stored fits without the
+   * field parse to []).
+   */
+  stationWeights: z
+    .array(stationWeightSchema)
+    .superRefine((list, ctx) => {
+      const seen = new Map<string, number>();
+      list.forEach((w, i) => {
+        const before = seen.get(w.stn);
+        if (before !== undefined) {
+          ctx.addIssue({ code: 'custom', path: [i, 'stn'], message: `Station ${w.stn} is reweighted twice (entries ${before + 1} and ${i + 1}); give each station once` });
+        } else seen.set(w.stn, i);
+      });
+    })
+    .default([]),
 });
 export type FitSettings = z.output<typeof fitSettingsSchema>;
 export type FitSettingsInput = z.input<typeof fitSettingsSchema>;

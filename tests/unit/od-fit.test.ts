@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { fitSettingsSchema, orbitDeterminationResultSchema, type Observatory, type OpticalObservation } from '../../shared/schemas/od';
 import { classifyOrbit } from '../../server/engine/classify';
 import { loadOrbitSolution } from '../../server/engine/input/solution';
-import { determineOrbit, FitAbortedError, nightlyDeweighting, OrbitDeterminationError } from '../../server/engine/od/fit';
+import { determineOrbit, FitAbortedError, nightlyDeweighting, observationSigmasArcsec, OrbitDeterminationError, stationSigmaMap } from '../../server/engine/od/fit';
 import { encounterUncertainty } from '../../server/engine/od/encounter';
 import { cholesky } from '../../server/engine/linalg/cholesky';
 import { ARCSEC_RAD, differentialCorrection, observationWeight, solveNormal, type LeastSquaresProblem } from '../../server/engine/od/leastSquares';
@@ -430,4 +430,103 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
     },
     120_000,
   );
+});
+
+describe('analyst reweighting of stations (settings.stationWeights)', () => {
+  const truth = testOrbit();
+  // Both stations report 0.5" (the synthetic arc's rmsRA/rmsDec); no outlier rejection so that every fit uses the
+  // same observations and only the weights differ.
+  const obs = syntheticArc(truth, nightTimes(6, 3, 20), 0.5, 31);
+  const fit = (stationWeights: { stn: string; sigmaArcsec: number }[]) =>
+    determineOrbit(
+      { observations: obs, observatories: OBSERVATORIES, settings: fitSettingsSchema.parse({ epoch: EPOCH_TEXT, rejectOutliers: false, stationWeights }) },
+      { skipEncounter: true },
+    );
+
+  it(
+    'a common sigma s vs 2s for every station: same solution, chi-square x 1/4, covariance x 4',
+    () => {
+      // Weighted least squares is invariant to a common scale of the weights (common practice, no source): the
+      // normal equations scale by 1/4 on both sides, so the estimate is unchanged, chi-square = Σ r²/σ² falls by 4
+      // and the covariance (inverse normal matrix) grows by 4.
+      const s = 0.8;
+      const a = fit([{ stn: 'TQA', sigmaArcsec: s }, { stn: 'TQB', sigmaArcsec: s }]).gravityOnly;
+      const b = fit([{ stn: 'TQA', sigmaArcsec: 2 * s }, { stn: 'TQB', sigmaArcsec: 2 * s }]).gravityOnly;
+      expect(a.status).toBe('converged');
+      expect(b.status).toBe('converged');
+      expect(b.observationsUsed).toBe(a.observationsUsed);
+      const state = (f: typeof a) => [...f.positionAu, ...f.velocityAuD];
+      const sa = state(a);
+      const sb = state(b);
+      for (let k = 0; k < 6; k++) {
+        const sigma = Math.sqrt(a.covariance![k][k]);
+        expect(Math.abs(sb[k] - sa[k])).toBeLessThan(1e-3 * sigma);
+      }
+      expect(b.chiSquare / a.chiSquare).toBeCloseTo(0.25, 4);
+      for (let i = 0; i < 6; i++) {
+        for (let j = 0; j < 6; j++) {
+          const scale = 4 * Math.sqrt(a.covariance![i][i] * a.covariance![j][j]);
+          expect(Math.abs(b.covariance![i][j] - 4 * a.covariance![i][j])).toBeLessThan(1e-4 * scale);
+        }
+      }
+      // the unweighted RMS in arcsec is a property of the residuals, not of the weights
+      expect(b.rmsArcsec).toBeCloseTo(a.rmsArcsec, 6);
+      for (const r of a.residuals) expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([s, s]);
+      for (const r of b.residuals) expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([2 * s, 2 * s]);
+    },
+    120_000,
+  );
+
+  it(
+    'reweighting one station changes the sigma in exactly its residuals; an unused station is a warning',
+    () => {
+      const plain = fit([]);
+      const one = fit([{ stn: 'TQA', sigmaArcsec: 1.5 }, { stn: 'TQZ', sigmaArcsec: 2 }]);
+      expect(one.gravityOnly.status).toBe('converged');
+      expect(one.settings.stationWeights).toEqual([{ stn: 'TQA', sigmaArcsec: 1.5 }, { stn: 'TQZ', sigmaArcsec: 2 }]);
+      const before = new Map(plain.gravityOnly.residuals.map((r) => [r.index, r]));
+      let changed = 0;
+      for (const r of one.gravityOnly.residuals) {
+        const p = before.get(r.index)!;
+        if (r.stn === 'TQA') {
+          // three per night: no nightly de-weighting, so the sigma used is exactly the analyst's
+          expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([1.5, 1.5]);
+          expect(p.sigmaRaArcsec).toBe(0.5);
+          changed++;
+        } else {
+          expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([p.sigmaRaArcsec, p.sigmaDecArcsec]);
+        }
+      }
+      expect(changed).toBe(obs.filter((o) => o.stn === 'TQA').length);
+      expect(changed).toBeGreaterThan(0);
+      // TQZ has no observation in the arc: named in a warning, not an error; TQA (used) is not
+      expect(one.warnings.filter((w) => w.includes('TQZ'))).toHaveLength(1);
+      expect(one.warnings.some((w) => w.includes('TQA'))).toBe(false);
+      expect(plain.warnings.some((w) => w.includes('reweighted'))).toBe(false);
+    },
+    120_000,
+  );
+
+  it('the nightly de-weighting still applies on top of an analyst sigma; the correlation is dropped', () => {
+    const sixteen = Array.from({ length: 16 }, (_, k) => ({ stn: 'TQA', obsTimeTdbDays: T0 + 0.3 + k * 0.005, rmsRaArcsec: 0.2, rmsDecArcsec: 0.3, rmsCorr: 0.4 }));
+    const sigma = observationSigmasArcsec(sixteen[0], stationSigmaMap([{ stn: 'TQA', sigmaArcsec: 1 }]));
+    expect(sigma).toEqual({ sigmaRaArcsec: 1, sigmaDecArcsec: 1, rmsCorr: 0 });
+    expect(observationSigmasArcsec(sixteen[0], stationSigmaMap([{ stn: 'TQB', sigmaArcsec: 1 }]))).toEqual({ sigmaRaArcsec: 0.2, sigmaDecArcsec: 0.3, rmsCorr: 0.4 });
+    // sixteen in one night weigh as four: the analyst sigma is doubled by nightlyDeweighting (METHODS.md §9.1 rule)
+    expect(nightlyDeweighting(sixteen)[0] * sigma.sigmaRaArcsec).toBeCloseTo(2, 12);
+  });
+
+  it('settings: each station once, sigma in (0, 60] arcsec; stored settings without the field read as []', () => {
+    expect(fitSettingsSchema.parse({}).stationWeights).toEqual([]);
+    const twice = fitSettingsSchema.safeParse({ stationWeights: [{ stn: 'TQA', sigmaArcsec: 1 }, { stn: 'TQA', sigmaArcsec: 2 }] });
+    expect(twice.success).toBe(false);
+    expect(twice.error!.issues[0].path).toEqual(['stationWeights', 1, 'stn']);
+    expect(twice.error!.issues[0].message).toMatch(/TQA.*twice/);
+    for (const bad of [0, -1, 60.5]) {
+      const r = fitSettingsSchema.safeParse({ stationWeights: [{ stn: 'TQA', sigmaArcsec: bad }] });
+      expect(r.success).toBe(false);
+      expect(r.error!.issues[0].path).toEqual(['stationWeights', 0, 'sigmaArcsec']);
+    }
+    expect(fitSettingsSchema.safeParse({ stationWeights: [{ stn: 'TQA', sigmaArcsec: 60 }] }).success).toBe(true);
+  });
 });

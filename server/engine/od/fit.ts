@@ -12,7 +12,10 @@
  *        comparison (compare.ts).
  *
  * Weights: 2x2 blocks from rmsRA (of RA·cos δ), rmsDec and rmsCorr; DEFAULT_OBSERVATION_SIGMA_ARCSEC when missing;
- * more than four observations of one station in one night are de-weighted by sqrt(N/4) (nightlyDeweighting).
+ * an analyst sigma from settings.stationWeights replaces the reported ones for every observation of that station
+ * (same sigma for RA·cos δ and Dec, correlation dropped: offices reweight stations whose reported uncertainties are
+ * too optimistic or absent); more than four observations of one station in one night are then de-weighted by
+ * sqrt(N/4) (nightlyDeweighting).
  * The dynamics are the engine's n-body model (+ the fitted non-grav terms); the epoch is settings.epoch or the
  * middle of the arc rounded to 0h TDB.
  *
@@ -556,6 +559,37 @@ export function defaultFitEpoch(firstTdbDays: number, lastTdbDays: number): numb
   return Math.round((firstTdbDays + lastTdbDays) / 2 - 0.5) + 0.5;
 }
 
+/** Station code -> analyst sigma (arcsec) from settings.stationWeights (the schema guarantees each code once). */
+export function stationSigmaMap(stationWeights: FitSettings['stationWeights']): Map<string, number> {
+  return new Map(stationWeights.map((w) => [w.stn, w.sigmaArcsec]));
+}
+
+/**
+ * Sigmas of one observation before the nightly de-weighting: an analyst-reweighted station uses its sigma for both
+ * RA·cos(dec) and Dec with the correlation dropped (the reported rmsCorr belongs to the reported sigmas being
+ * replaced); otherwise the reported rmsRA/rmsDec/rmsCorr, DEFAULT_OBSERVATION_SIGMA_ARCSEC when absent.
+ */
+export function observationSigmasArcsec(
+  o: Pick<OpticalObservation, 'stn' | 'rmsRaArcsec' | 'rmsDecArcsec' | 'rmsCorr'>,
+  stationSigma: ReadonlyMap<string, number>,
+): { sigmaRaArcsec: number; sigmaDecArcsec: number; rmsCorr: number } {
+  const analyst = stationSigma.get(o.stn);
+  if (analyst !== undefined) return { sigmaRaArcsec: analyst, sigmaDecArcsec: analyst, rmsCorr: 0 };
+  return {
+    sigmaRaArcsec: o.rmsRaArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC,
+    sigmaDecArcsec: o.rmsDecArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC,
+    rmsCorr: o.rmsCorr ?? 0,
+  };
+}
+
+/** A reweighted station with no usable (non-excluded) observation in the fit's input is named, not an error. */
+function unusedStationWeightWarnings(stationSigma: ReadonlyMap<string, number>, observations: readonly OpticalObservation[], usable: readonly number[]): string[] {
+  const present = new Set(usable.map((i) => observations[i].stn));
+  return [...stationSigma.keys()]
+    .filter((stn) => !present.has(stn))
+    .map((stn) => `station ${stn} is reweighted in the settings but has no usable observation in this fit; its weight was not used`);
+}
+
 export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbitHooks = {}): OrbitDeterminationResult {
   const { observations, observatories, settings } = input;
   const checkAbort = () => {
@@ -614,10 +648,14 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   const sigmaRa = new Float64Array(N);
   const sigmaDec = new Float64Array(N);
   const nightly = nightlyDeweighting(observations);
+  // Stored fits from before the field existed carry no stationWeights: reported uncertainties everywhere.
+  const stationSigma = stationSigmaMap(settings.stationWeights ?? []);
+  warnings.push(...unusedStationWeightWarnings(stationSigma, observations, usable));
   observations.forEach((o, i) => {
-    sigmaRa[i] = (o.rmsRaArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC) * nightly[i];
-    sigmaDec[i] = (o.rmsDecArcsec ?? DEFAULT_OBSERVATION_SIGMA_ARCSEC) * nightly[i];
-    const w = observationWeight(sigmaRa[i], sigmaDec[i], o.rmsCorr ?? 0);
+    const s = observationSigmasArcsec(o, stationSigma);
+    sigmaRa[i] = s.sigmaRaArcsec * nightly[i];
+    sigmaDec[i] = s.sigmaDecArcsec * nightly[i];
+    const w = observationWeight(sigmaRa[i], sigmaDec[i], s.rmsCorr);
     weights.set(w.weight, 3 * i);
     obsCovariance.set(w.covariance, 3 * i);
   });
