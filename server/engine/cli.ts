@@ -19,13 +19,17 @@
  *       -> {"object","eccentricity","eccentricitySigma","unboundSignificance","bound","vInfinityKmS","perihelionAu"}
  *   assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance]
  *       -> the Engine II risk assessment of issue 4 item 8 (server/engine/assess/assess.ts)
- *   fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--progress]
+ *   fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N]
+ *       [--station-sigma STN=ARCSEC[,STN=ARCSEC...]] [--progress]
  *       -> {"object","chosen","solution","fit","gravityOnly","comparison","preliminary","arc","warnings","caution"}
  *          orbit determination from IAU ADES PSV astrometry (server/engine/od/fit.ts, METHODS §9): "fit" is the chosen
  *          fit (the non-gravitational one with --nongrav, else gravity-only: state, covariance, RMS, chi-square,
  *          residuals of every observation, elements with 1-sigma, encounter uncertainty), "solution" the same fit as a
  *          Tocsin JSON orbit solution (usable as FILE by the other commands), "gravityOnly" the gravity-only fit when
  *          --nongrav is given (else null) and "comparison" the gravity-only/non-grav comparison (else null).
+ *          --station-sigma reweights whole stations: every observation of STN uses ARCSEC (0 < ARCSEC <= 60) for
+ *          RA·cos(dec) and Dec instead of its reported uncertainties (correlation dropped; the nightly de-weighting still
+ *          applies); a named station without observations gives a warning. A malformed list is a usage error (exit 2).
  *          Malformed ADES lines and observatory files are INVALID_INPUT with one issue per line/field.
  *   help -> {"commands": {...}, "epochForms": [...]}
  *
@@ -74,7 +78,7 @@ const USAGE: Record<string, string> = {
   approaches: 'approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,venus,mars]]',
   classify: 'classify FILE',
   assess: 'assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance] [--max-au 0.05] [--body earth[,...]] [--progress]',
-  fit: 'fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--progress]',
+  fit: 'fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--station-sigma HSA=0.5,HSB=0.8] [--progress]',
   help: 'help',
 };
 
@@ -353,14 +357,33 @@ function readText(path: string): string {
 }
 
 /**
+ * --station-sigma "HSA=0.5,HSB=0.8": station code = sigma in arcsec, comma separated. Checked here with the same rules
+ * as the settings schema (code of 1-8 letters or digits, 0 < sigma <= 60, each station once); any fault is a usage error.
+ */
+export function stationSigmaArg(text: string): { stn: string; sigmaArcsec: number }[] {
+  const bad = (why: string) => usageError(`--station-sigma takes STN=ARCSEC[,STN=ARCSEC...] (e.g. HSA=0.5,HSB=0.8): ${why}`);
+  const out: { stn: string; sigmaArcsec: number }[] = [];
+  for (const item of text.split(',')) {
+    const m = /^\s*([A-Za-z0-9]{1,8})\s*=\s*(\S+)\s*$/.exec(item);
+    if (!m) throw bad(`${JSON.stringify(item)} is not STN=ARCSEC with a code of 1 to 8 letters or digits`);
+    const [, stn, valueText] = m;
+    const sigmaArcsec = Number(valueText);
+    if (!Number.isFinite(sigmaArcsec) || sigmaArcsec <= 0 || sigmaArcsec > 60) throw bad(`the sigma of ${stn} must be a number of arcseconds in (0, 60], got ${JSON.stringify(valueText)}`);
+    if (out.some((w) => w.stn === stn)) throw bad(`station ${stn} is given twice`);
+    out.push({ stn, sigmaArcsec });
+  }
+  return out;
+}
+
+/**
  * fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH]
- *   [--no-outliers] [--max-iterations N] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
+ *   [--no-outliers] [--max-iterations N] [--station-sigma STN=ARCSEC,...] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
  */
 async function cmdFit(argv: string[]): Promise<unknown> {
   const { values, positionals } = parse(argv, {
     observatories: { type: 'string' }, nongrav: { type: 'string' }, epoch: { type: 'string' },
     'no-outliers': { type: 'boolean' }, 'max-iterations': { type: 'string' }, progress: { type: 'boolean' },
-    law: { type: 'string' },
+    law: { type: 'string' }, 'station-sigma': { type: 'string' },
   });
   const file = positional(positionals, 'FILE.psv (IAU ADES PSV astrometry)');
   if (values.observatories === undefined) throw usageError('missing --observatories FILE.json');
@@ -386,6 +409,7 @@ async function cmdFit(argv: string[]): Promise<unknown> {
       throw usageError(`--max-iterations must be an integer in [1, 100], got ${JSON.stringify(values['max-iterations'])}`);
     }
   }
+  const stationWeights = values['station-sigma'] === undefined ? [] : stationSigmaArg(values['station-sigma']);
   const psv = readText(file);
   const obsText = readText(values.observatories);
   const od = await needModule('orbit determination (server/engine/od)', () => import('./od'));
@@ -418,7 +442,7 @@ async function cmdFit(argv: string[]): Promise<unknown> {
   if (ids.length > 1) {
     throw new CliError('INVALID_INPUT', `${file}: observations of ${ids.length} objects (${ids.slice(0, 5).join(', ')}); give one object per file`);
   }
-  const settings = fitSettingsSchema.parse({ epoch, nonGravTerms: terms, nonGravLaw: law, rejectOutliers: !values['no-outliers'], maxIterations });
+  const settings = fitSettingsSchema.parse({ epoch, nonGravTerms: terms, nonGravLaw: law, rejectOutliers: !values['no-outliers'], maxIterations, stationWeights });
   const onProgress = values.progress ? (p: { stage: string; done: number; total: number }) => process.stderr.write(`${JSON.stringify({ progress: p })}\n`) : undefined;
   let result;
   try {

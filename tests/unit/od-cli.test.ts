@@ -114,10 +114,36 @@ describe('engine CLI fit (issue 8 item 7)', () => {
     120_000,
   );
 
+  it(
+    '--station-sigma: the residuals of the named station carry the analyst sigma; an unknown station is a warning',
+    async () => {
+      const out = await ok(['fit', PSV, '--observatories', OBS_JSON, '--epoch', 'JD:2462495.5', '--station-sigma', 'TQA=1.2, TQZ=3']);
+      expect(out.fit.status).toBe('converged');
+      // three per night: no nightly de-weighting, so the sigma is exactly the given one (synthetic rms is 0.4")
+      for (const r of out.fit.residuals) {
+        expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual(r.stn === 'TQA' ? [1.2, 1.2] : [0.4, 0.4]);
+      }
+      expect(out.warnings.filter((w: string) => w.includes('TQZ'))).toHaveLength(1);
+    },
+    120_000,
+  );
+
   it('usage errors exit 2; bad ADES lines and observatory files exit 1 with their line/field issues', async () => {
     expect((await fails(['fit', PSV], 'USAGE', 2)).message).toMatch(/missing --observatories/);
     expect((await fails(['fit', PSV, '--observatories', OBS_JSON, '--nongrav', 'A4'], 'USAGE', 2)).message).toMatch(/--nongrav/);
     expect((await fails(['fit', PSV, '--observatories', OBS_JSON, '--epoch', '2030-01-01'], 'INVALID_EPOCH', 2)).message).toMatch(/JD:/);
+    // malformed --station-sigma values are usage errors naming what is wrong
+    for (const [value, why] of [
+      ['TQA', /not STN=ARCSEC/],
+      ['TQA=0', /TQA.*\(0, 60\]/],
+      ['TQA=61', /TQA.*\(0, 60\]/],
+      ['TQA=abc', /TQA.*"abc"/],
+      ['TQA=1,TQA=2', /TQA is given twice/],
+      ['T-Q=1', /not STN=ARCSEC/],
+      ['TQA=1,', /not STN=ARCSEC/],
+    ] as const) {
+      expect((await fails(['fit', PSV, '--observatories', OBS_JSON, '--station-sigma', value], 'USAGE', 2)).message).toMatch(why);
+    }
     await fails(['fit', join(tmp, 'nope.psv'), '--observatories', OBS_JSON], 'FILE_NOT_READABLE', 1);
     const bad = await fails(['fit', BAD_PSV, '--observatories', OBS_JSON], 'INVALID_INPUT', 1);
     expect(bad.issues.length).toBeGreaterThanOrEqual(2);
