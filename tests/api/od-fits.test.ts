@@ -209,6 +209,48 @@ describe('a fit computed by the real engine', () => {
   });
 });
 
+describe('reweighting observatories (settings.stationWeights)', () => {
+  it('a station code not in the observatory table is 422 naming it, and nothing is queued', async () => {
+    const before = srv.db.select().from(orbitFits).all().length;
+    const res = await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { stationWeights: [{ stn: 'TQS', sigmaArcsec: 1 }, { stn: 'TQX9', sigmaArcsec: 2 }] } });
+    expect(res.status).toBe(422);
+    expect(res.body.error.message).toMatch(/TQX9/);
+    expect(res.body.error.message).not.toMatch(/TQS/);
+    expect(res.body.error.details.issues).toEqual([{ in: 'body', path: 'stationWeights.1.stn', message: expect.stringMatching(/TQX9/) }]);
+    // malformed entries are refused by the shared schema before the service (each station once; sigma in (0, 60])
+    const twice = await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { stationWeights: [{ stn: 'TQS', sigmaArcsec: 1 }, { stn: 'TQS', sigmaArcsec: 2 }] } });
+    expect(twice.status).toBe(400);
+    expect(JSON.stringify(twice.body)).toMatch(/TQS is reweighted twice/);
+    expect((await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { stationWeights: [{ stn: 'TQS', sigmaArcsec: 0 }] } })).status).toBe(400);
+    expect(srv.db.select().from(orbitFits).all().length).toBe(before);
+  });
+
+  it('is stored in the fit settings and applied: the station\'s residuals carry the analyst sigma', async () => {
+    runner ??= startRunner();
+    const res = await as.analyst.request('POST', `/api/objects/${objectId}/fits`, { body: { epoch: TRUTH_EPOCH, stationWeights: [{ stn: 'TQS', sigmaArcsec: 0.9 }] } });
+    expect(res.status, JSON.stringify(res.body)).toBe(202);
+    expect(fitJobSchema.parse(res.body).settings.stationWeights).toEqual([{ stn: 'TQS', sigmaArcsec: 0.9 }]);
+    expect(JSON.parse(fitRow(res.body.id).settingsJson).stationWeights).toEqual([{ stn: 'TQS', sigmaArcsec: 0.9 }]);
+    const done = await pollFit(res.body.id, (f) => f.status !== 'queued' && f.status !== 'running');
+    expect(done.status, done.error ?? '').toBe('done');
+    const g = done.result!.gravityOnly;
+    expect(g.status).toBe('converged');
+    // TQS observes once a night and TQN twice: no nightly de-weighting, so the sigmas are exactly the analyst's for
+    // TQS and the reported 0.3" (the synthetic arc's noise, written as rmsRA/rmsDec) for TQN
+    const tqs = g.residuals.filter((r) => r.stn === 'TQS');
+    const tqn = g.residuals.filter((r) => r.stn === 'TQN');
+    expect(tqs.length).toBeGreaterThan(0);
+    expect(tqn.length).toBeGreaterThan(0);
+    for (const r of tqs) expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([0.9, 0.9]);
+    for (const r of tqn) expect([r.sigmaRaArcsec, r.sigmaDecArcsec]).toEqual([0.3, 0.3]);
+
+    // a fit stored before the field existed (no stationWeights in its settings) reads as "no reweighting"
+    const { stationWeights: _dropped, ...old } = JSON.parse(fitRow(res.body.id).settingsJson);
+    srv.db.update(orbitFits).set({ settingsJson: JSON.stringify(old) }).where(eq(orbitFits.id, res.body.id)).run();
+    expect(fitJobSchema.parse((await as.reviewer.get(`/api/fits/${res.body.id}`)).body).settings.stationWeights).toEqual([]);
+  }, 300_000);
+});
+
 describe('a fit the engine refuses', () => {
   it('ends failed with the engine\'s reason (observations from one night only), and cannot be adopted', async () => {
     runner ??= startRunner();

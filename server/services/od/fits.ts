@@ -36,7 +36,7 @@ function toJob(row: FitJoinRow, withResult: boolean): FitJob {
     objectId: f.objectId,
     designation: row.designation,
     status: f.status,
-    settings: JSON.parse(f.settingsJson) as FitSettings,
+    settings: storedSettings(f.settingsJson),
     progressStage: f.progressStage,
     progressDone: f.progressDone,
     progressTotal: f.progressTotal,
@@ -53,6 +53,12 @@ function toJob(row: FitJoinRow, withResult: boolean): FitJob {
         ? { which: f.adoptedWhich, solutionId: f.adoptedSolutionId, solutionVersion: row.adoptedVersion, reason: f.adoptedReason ?? '', byName: row.adoptedByName, at: f.adoptedAt.toISOString() }
         : null,
   };
+}
+
+/** Stored settings; fits queued before stationWeights existed read as "no reweighting" (the schema default). */
+function storedSettings(json: string): FitSettings {
+  const raw = JSON.parse(json) as Partial<FitSettings> & Omit<FitSettings, 'stationWeights'>;
+  return { ...raw, stationWeights: raw.stationWeights ?? [] };
 }
 
 function refused(field: string, message: string) {
@@ -94,7 +100,8 @@ export function createFitService(db: Db, deps: { objects: ObjectService; astrome
 
     /**
      * Queue a fit of the object's non-excluded observations with these settings. 404: no such object; 422: fewer
-     * than MIN_FIT_OBSERVATIONS usable observations, or an initial solution that is not a version of this object.
+     * than MIN_FIT_OBSERVATIONS usable observations, an initial solution that is not a version of this object, or
+     * a reweighted station code that is not in the observatory table.
      */
     create(objectId: number, settings: FitSettings, actorId: number | null, now = new Date()): FitJob {
       deps.objects.get(objectId);
@@ -110,6 +117,19 @@ export function createFitService(db: Db, deps: { objects: ObjectService; astrome
       if (settings.initialSolutionId !== null) {
         const s = db.select({ objectId: orbitSolutions.objectId }).from(orbitSolutions).where(eq(orbitSolutions.id, settings.initialSolutionId)).get();
         if (!s || s.objectId !== objectId) throw refused('initialSolutionId', `Solution ${settings.initialSolutionId} is not a solution version of this object`);
+      }
+      if (settings.stationWeights.length) {
+        // A reweighted station must be in the observatory table (a code with no observations of this object is
+        // allowed: the engine names it in the fit's warnings).
+        const known = new Set(deps.observatories.byCodes(settings.stationWeights.map((w) => w.stn)).map((o) => o.code));
+        const unknown = settings.stationWeights.map((w, i) => ({ stn: w.stn, path: `stationWeights.${i}.stn` })).filter((w) => !known.has(w.stn));
+        if (unknown.length) {
+          const codes = unknown.map((u) => u.stn).join(', ');
+          throw unprocessable(`Unknown observatory code${unknown.length > 1 ? 's' : ''} ${codes} in the station reweighting (not in the observatory table)`, {
+            field: 'stationWeights',
+            issues: unknown.map((u) => ({ in: 'body', path: u.path, message: `Observatory ${u.stn} is not in the observatory table` })),
+          });
+        }
       }
       const rows = deps.astrometry.usableRows(objectId);
       if (rows.length < MIN_FIT_OBSERVATIONS) {
