@@ -255,12 +255,29 @@ describe('orbit determination in the browser', () => {
     await page.getByText(/epoch must be/).waitFor();
     await page.getByLabel('Solution epoch').fill('');
     for (const term of ['A1 (radial)', 'A2 (transverse)']) await page.getByLabel(term).uncheck();
+    // reweight one observatory of the arc: a zero sigma is refused at its field (shared/schemas/od.ts message),
+    // then 0.5" is sent and shown in the fit's settings line
+    await page.getByLabel('HSC sigma (″)').fill('0');
+    await page.getByRole('button', { name: 'Queue the fit' }).click();
+    await page.getByText('Sigma must be greater than 0 arcsec').waitFor();
+    await screenshot(page, 'od-start-fit-reweight-refused');
+    await page.getByLabel('HSC sigma (″)').fill('0.5');
     await page.getByRole('button', { name: 'Queue the fit' }).click();
     await page.waitForURL((u) => /^\/fits\/\d+$/.test(u.pathname) && u.pathname !== `/fits/${demoFitId}`);
+    await page.getByText('HSC reweighted to 0.5″').waitFor();
     const ownId = Number(new URL(page.url()).pathname.split('/').pop());
     const own = await finishedFit(page, ownId);
     expect(own.status).toBe('done');
     expect(own.settings.nonGravTerms).toEqual([]);
+    expect(own.settings.stationWeights).toEqual([{ stn: 'HSC', sigmaArcsec: 0.5 }]);
+    // the engine used it: every HSC residual carries 0.5" (times the nightly de-weighting factor, >= 1)
+    const hsc = own.result!.gravityOnly.residuals.filter((r) => r.stn === 'HSC');
+    expect(hsc.length).toBeGreaterThan(0);
+    for (const r of hsc) {
+      expect(r.sigmaRaArcsec).toBe(r.sigmaDecArcsec);
+      expect(r.sigmaRaArcsec).toBeGreaterThanOrEqual(0.5);
+    }
+    expect(hsc.some((r) => r.sigmaRaArcsec === 0.5)).toBe(true);
     expect(own.result!.nonGrav).toBeNull();
     await page.getByTestId('fit-status').filter({ hasText: 'Done' }).waitFor({ timeout: 30_000 });
     await page.getByTestId('residual-plot-gravity-only').waitFor();

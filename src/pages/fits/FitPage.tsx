@@ -18,6 +18,7 @@ import { FitProgress, FitStatusBadge } from './FitStatus';
 import { FIT_LABELS } from './format';
 import { ResidualPlots } from './ResidualPlots';
 import { ResidualTable } from './ResidualTable';
+import { stationWeightsText } from './stationWeights';
 
 function downloadJson(fit: FitJob) {
   downloadBlob(`tocsin-fit-${fit.id}-${fileSafe(fit.designation)}.json`, new Blob([JSON.stringify(fit.result, null, 2)], { type: 'application/json' }));
@@ -62,7 +63,8 @@ export function FitPage() {
           <p>
             {fit.observationCount} observations · {s.nonGravTerms.length ? `gravity only vs ${s.nonGravTerms.map((t) => t.toUpperCase()).join(', ')} (${s.nonGravLaw})` : 'gravity only'} · epoch{' '}
             {s.epoch ?? 'middle of the arc'} · {s.rejectOutliers ? 'outliers rejected by the χ² rule' : 'no outlier rejection'} · start{' '}
-            {s.initialSolutionId ? `from solution #${s.initialSolutionId}` : "by Gauss's method"} · requested {formatUtc(fit.createdAt)}
+            {s.initialSolutionId ? `from solution #${s.initialSolutionId}` : "by Gauss's method"} · {stationWeightsText(s.stationWeights) ?? 'reported uncertainties'} ·
+            requested {formatUtc(fit.createdAt)}
             {fit.createdByName ? ` by ${fit.createdByName}` : ''}
           </p>
         }

@@ -1,14 +1,16 @@
 // Start an orbit fit of the object's astrometry (its non-excluded observations at queue time): epoch, the
 // non-gravitational terms of the second fit (none = gravity-only fit only), their law, outlier rejection, where
-// the iteration starts (Gauss's method or a stored solution version) and the iteration cap. Checked with the
-// shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
+// the iteration starts (Gauss's method or a stored solution version), the iteration cap, and an optional sigma per
+// observatory among the object's observations (settings.stationWeights: that station's reported uncertainties are
+// replaced). Checked with the shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
 import { useState, type FormEvent } from 'react';
 import { Link, useNavigate } from 'react-router';
-import { fitSettingsSchema, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm } from '../../../shared/schemas/od';
+import { fitSettingsSchema, MAX_STATION_SIGMA_ARCSEC, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm } from '../../../shared/schemas/od';
 import type { SolutionSummary } from '../../../shared/schemas/objects';
-import { fieldErrors } from '../../api/client';
-import { useCreateFit } from '../../api/od';
+import { ApiError, fieldErrors } from '../../api/client';
+import { useAstrometry, useCreateFit } from '../../api/od';
 import { Button, Card, Notice, SelectField, TextField, errorMessage } from '../../components/ui';
+import { stationsOf } from './stationWeights';
 
 const TERM_LABELS: Record<NonGravTerm, string> = { a1: 'A1 (radial)', a2: 'A2 (transverse)', a3: 'A3 (normal)' };
 
@@ -22,7 +24,13 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
   const [initial, setInitial] = useState('');
   const [maxIterations, setMaxIterations] = useState('25');
   const [local, setLocal] = useState<Record<string, string>>({});
+  /** Analyst sigma text per station code ('' = use the reported uncertainties). */
+  const [stationSigma, setStationSigma] = useState<Record<string, string>>({});
+  const [stationLocal, setStationLocal] = useState<Record<string, string>>({});
+  const astrometry = useAstrometry(objectId);
+  const stations = astrometry.data ? stationsOf(astrometry.data.observations) : [];
   const errors = { ...fieldErrors(create.error), ...local };
+  const stationErrors = { ...stationServerErrors(create.error, create.variables?.stationWeights), ...stationLocal };
 
   const submit = (e: FormEvent) => {
     e.preventDefault();
@@ -33,18 +41,28 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
       rejectOutliers,
       initialSolutionId: initial === '' ? null : Number(initial),
       maxIterations: Number(maxIterations),
+      // Only stations with a sigma typed in; a non-number becomes NaN so the schema's message lands at the field.
+      stationWeights: stations
+        .filter((st) => (stationSigma[st.stn] ?? '').trim() !== '')
+        .map((st) => ({ stn: st.stn, sigmaArcsec: Number((stationSigma[st.stn] ?? '').trim().replace(',', '.')) })),
     };
     const parsed = fitSettingsSchema.safeParse(body);
     if (!parsed.success) {
       const out: Record<string, string> = {};
+      const perStation: Record<string, string> = {};
       for (const i of parsed.error.issues) {
         const k = String(i.path[0] ?? '');
-        if (k && !out[k]) out[k] = k === 'maxIterations' ? 'A whole number from 1 to 100' : i.message;
+        if (k === 'stationWeights' && typeof i.path[1] === 'number') {
+          const stn = body.stationWeights![i.path[1]]?.stn;
+          if (stn && !perStation[stn]) perStation[stn] = i.message;
+        } else if (k && !out[k]) out[k] = k === 'maxIterations' ? 'A whole number from 1 to 100' : i.message;
       }
       setLocal(out);
+      setStationLocal(perStation);
       return;
     }
     setLocal({});
+    setStationLocal({});
     create.mutate(parsed.data, { onSuccess: (fit) => navigate(`/fits/${fit.id}`) });
   };
 
@@ -91,6 +109,34 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
           <input type="checkbox" checked={rejectOutliers} onChange={(e) => setRejectOutliers(e.target.checked)} />
           Reject and recover outliers by the χ² rule
         </label>
+        <fieldset className="sm:col-span-2">
+          <legend className="mb-1 block text-sm font-medium text-ink">Reweight observatories</legend>
+          <p className="mb-2 text-sm text-ink-soft">
+            A sigma (arcsec, up to {MAX_STATION_SIGMA_ARCSEC}) replaces the reported uncertainties of every observation from that observatory, for RA·cos δ
+            and Dec alike. Empty: use the reported uncertainties. Several observations from one observatory in one night are still de-weighted on top.
+          </p>
+          {astrometry.isPending ? (
+            <p className="text-sm text-ink-soft">Loading the observatories of the observations…</p>
+          ) : stations.length === 0 ? (
+            <p className="text-sm text-ink-soft">No observations to reweight yet.</p>
+          ) : (
+            <div className="grid gap-3 sm:grid-cols-3">
+              {stations.map((st) => (
+                <TextField
+                  key={st.stn}
+                  label={`${st.stn} sigma (″)`}
+                  inputMode="decimal"
+                  value={stationSigma[st.stn] ?? ''}
+                  onChange={(e) => setStationSigma((x) => ({ ...x, [st.stn]: e.target.value }))}
+                  placeholder="reported"
+                  hint={`${st.count} observation${st.count === 1 ? '' : 's'}`}
+                  error={stationErrors[st.stn]}
+                />
+              ))}
+            </div>
+          )}
+          {errors.stationWeights && Object.keys(stationErrors).length === 0 && <p className="mt-1 text-sm font-medium text-danger-700">{errors.stationWeights}</p>}
+        </fieldset>
         <div className="sm:col-span-2">
           {create.isError && Object.keys(fieldErrors(create.error)).length === 0 && <Notice tone="error" className="mb-3">{errorMessage(create.error)}</Notice>}
           <Button type="submit" busy={create.isPending} disabled={observationCount !== null && observationCount < 3}>Queue the fit</Button>
@@ -98,4 +144,18 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
       </form>
     </Card>
   );
+}
+
+/** The server's per-station refusals (issue paths "stationWeights.N.stn", e.g. a code not in the observatory table), keyed by the code sent at N. */
+function stationServerErrors(error: unknown, sent: readonly { stn: string }[] | undefined): Record<string, string> {
+  if (!sent || !(error instanceof ApiError) || typeof error.details !== 'object' || error.details === null) return {};
+  const issues = (error.details as { issues?: unknown }).issues;
+  if (!Array.isArray(issues)) return {};
+  const out: Record<string, string> = {};
+  for (const i of issues as { path?: unknown; message?: unknown }[]) {
+    const m = typeof i.path === 'string' ? /^stationWeights\.(\d+)/.exec(i.path) : null;
+    const stn = m ? sent[Number(m[1])]?.stn : undefined;
+    if (stn && typeof i.message === 'string' && !out[stn]) out[stn] = i.message;
+  }
+  return out;
 }
