@@ -115,6 +115,13 @@ export type ObjectListResponse = z.infer<typeof objectListResponseSchema>;
 /** 'fit': adopted from an orbit fit of the object's astrometry (issue 8; the remark records which fit and why). */
 export const SOLUTION_SOURCE_KINDS = ['opm', 'json', 'form', 'fit'] as const;
 export const solutionSourceKindSchema = z.enum(SOLUTION_SOURCE_KINDS);
+/** How each source kind is named on screen (the Tocsin JSON written by an adopted orbit fit reads "Orbit fit"). */
+export const SOLUTION_SOURCE_LABELS: Record<(typeof SOLUTION_SOURCE_KINDS)[number], string> = {
+  opm: 'CCSDS OPM',
+  json: 'Tocsin JSON',
+  form: 'Entered elements',
+  fit: 'Orbit fit',
+};
 export const FORCE_MODELS = ['gravity-only', 'non-gravitational'] as const;
 export const forceModelSchema = z.enum(FORCE_MODELS);
 export const nonGravTermSchema = z.enum(['A1', 'A2', 'A3']);

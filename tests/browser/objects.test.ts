@@ -35,7 +35,7 @@ describe('objects as an analyst', () => {
     await page.getByRole('button', { name: 'Show version 2' }).click();
     const detail = page.getByTestId('solution-detail-2');
     await detail.getByText('A1 (radial)').waitFor();
-    expect(await detail.getByText('Input as received (JSON)').count()).toBe(1);
+    expect(await detail.getByText('Input as received (Tocsin JSON)').count()).toBe(1);
     await page.getByLabel('Compare version 1').check();
     await page.getByLabel('Compare version 2').check();
     await page.getByRole('button', { name: 'Compare the two ticked versions' }).click();

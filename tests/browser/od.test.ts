@@ -222,7 +222,7 @@ describe('orbit determination in the browser', () => {
     await detail.getByText(reason, { exact: false }).waitFor();
     expect(await detail.innerText()).toContain(`fit #${demoFitId}`);
     const row = page.getByTestId(`version-row-${version}`);
-    expect(await row.innerText()).toContain('FIT');
+    expect(await row.innerText()).toContain('Orbit fit');
     expect(await row.innerText()).toMatch(/With A1, A2/i);
     await screenshot(page, 'od-analyst-adopted');
 

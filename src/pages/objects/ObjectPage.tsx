@@ -2,7 +2,7 @@
 // and choosing two versions to compare.
 import { useState } from 'react';
 import { Link, useNavigate, useParams, useSearchParams } from 'react-router';
-import { TRACKED_OBJECT_KIND_LABELS, type SolutionSummary } from '../../../shared/schemas/objects';
+import { SOLUTION_SOURCE_LABELS, TRACKED_OBJECT_KIND_LABELS, type SolutionSummary } from '../../../shared/schemas/objects';
 import { useObject, useSolutions, useUpdateObject } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
@@ -69,7 +69,7 @@ function VersionsTable({ objectId, solutions, onShow }: { objectId: number; solu
                       v{s.version}
                     </button>
                   </td>
-                  <td className="px-3 py-2">{s.sourceKind.toUpperCase()}{s.fileName ? ` · ${s.fileName}` : ''}</td>
+                  <td className="px-3 py-2">{SOLUTION_SOURCE_LABELS[s.sourceKind]}{s.fileName ? ` · ${s.fileName}` : ''}</td>
                   <td className="px-3 py-2">{formatUtc(s.epochUtc)}</td>
                   <td className="px-3 py-2">
                     {/* rounded for display: a version adopted from a fit carries the full-precision arc and RMS */}

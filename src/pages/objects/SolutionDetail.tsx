@@ -2,6 +2,7 @@
 import { useSolution } from '../../api/objects';
 import { Card, ErrorState, LoadingState } from '../../components/ui';
 import { formatNumber, formatSigma } from './format';
+import { SOLUTION_SOURCE_LABELS } from '../../../shared/schemas/objects';
 
 export function SolutionDetail({ objectId, version, onClose }: { objectId: number; version: number; onClose: () => void }) {
   const s = useSolution(objectId, version);
@@ -45,7 +46,7 @@ export function SolutionDetail({ objectId, version, onClose }: { objectId: numbe
             </ul>
           )}
           <details>
-            <summary className="cursor-pointer text-sm font-medium">Input as received ({s.data.sourceKind.toUpperCase()})</summary>
+            <summary className="cursor-pointer text-sm font-medium">Input as received ({SOLUTION_SOURCE_LABELS[s.data.sourceKind]})</summary>
             <pre className="mt-2 max-h-96 overflow-auto rounded-md bg-accent-50 p-3 text-xs">
               {s.data.rawText.split(/\r\n|\r|\n/).map((line, k) => (
                 <span key={k} className="block">
