@@ -12,6 +12,7 @@ import { runMigrations } from './db/migrate';
 import { DEMO_USERS, DEMO_OFFICE, seed } from './db/seed';
 import { createTransport } from './services/mail';
 import { seedDemoBulletins } from './services/bulletins/demo';
+import { closeBulletinPdfWorkers } from './services/pdf';
 import { seedDemoReleases } from './services/releases/demo';
 import { queueDemoFit } from './services/od/demo';
 import { createFitRunner } from './services/od/fitRunner';
@@ -109,6 +110,7 @@ async function main(): Promise<void> {
     services.releaseScheduler.stop();
     // Running engine work is stopped and its runs go back to the queue; the next start resumes them.
     await Promise.all([runner.stop(), fitRunner.stop()]);
+    await closeBulletinPdfWorkers(); // the bulletin PDF thread (server/services/pdf/pool.ts)
     server.closeAllConnections();
     await new Promise<void>((resolve) => server.close(() => resolve()));
     transport.close();

@@ -1,5 +1,6 @@
 /**
- * Bulletin PDF (issue 6 item 5): renders one locked (approved) bulletin version to PDF with pdfkit.
+ * Bulletin PDF (issue 6 item 5): renders one locked (approved) bulletin version to PDF with pdfkit, in a worker thread
+ * (pool.ts; the layout itself is render.ts).
  * Byte-stable: the same version gives the same bytes (fixed info dates from the approval time, a trailer ID
  * derived from the version hash, no current time anywhere). Layout constants and the standing caution live in
  * templates/pdf/.
@@ -10,6 +11,9 @@
  */
 import { createHash } from 'node:crypto';
 import type { BulletinVersion } from '../../../shared/schemas/bulletins';
+import { renderInWorker } from './pool';
+
+export { closeBulletinPdfWorkers } from './pool';
 
 export type BulletinVersionForPdf = BulletinVersion & {
   officeName: string;
@@ -38,7 +42,8 @@ export async function renderBulletinPdf(version: BulletinVersionForPdf): Promise
   if (pending) {
     cache.delete(key); // most recently used goes last
   } else {
-    pending = import('./render').then(({ renderBulletinPdfImpl }) => renderBulletinPdfImpl(version));
+    // Laid out in a worker thread (pool.ts), so the server's event loop stays free meanwhile.
+    pending = renderInWorker(version);
     pending.catch(() => cache.delete(key));
   }
   cache.set(key, pending);
