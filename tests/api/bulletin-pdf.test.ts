@@ -184,6 +184,87 @@ describe('document tables', () => {
   });
 });
 
+describe('merged table cells (rowspan) drawn across their rows', () => {
+  // Read back independently: word boxes from poppler's pdftotext -bbox (points, origin top left) and pixels of the
+  // page rasterised by pdftoppm -gray at 144 dpi (2 px per point). Rules are #b8bec5 (grey about 190; a 0.5 pt rule
+  // gives one or two pixels darker than 240), stripes #f7f8f9 (about 248), the page white (255): templates/pdf/
+  // layout.ts COLOR.
+  const PX_PER_PT = 2;
+  let words: { text: string; xMin: number; yMin: number; xMax: number; yMax: number }[];
+  let px: (xPt: number, yPt: number) => number;
+
+  beforeAll(async () => {
+    const cell = (text: string, attrs: Record<string, unknown> = {}, type: 'tableCell' | 'tableHeader' = 'tableCell') => ({
+      type,
+      attrs,
+      content: [{ type: 'paragraph' as const, content: [{ type: 'text' as const, text }] }],
+    });
+    const v = structuredClone(version);
+    v.document = {
+      type: 'doc',
+      content: [
+        {
+          type: 'table',
+          content: [
+            { type: 'tableRow', content: [cell('Quantity', {}, 'tableHeader'), cell('Value', {}, 'tableHeader'), cell('Note', {}, 'tableHeader')] },
+            { type: 'tableRow', content: [cell('Probability', { rowspan: 2 }), cell('2.0e-7'), cell('below 3e-4')] },
+            { type: 'tableRow', content: [cell('linear'), cell('MonteCarlo')] },
+            { type: 'tableRow', content: [cell('Palermo'), cell('both methods agree', { colspan: 2 })] },
+            {
+              type: 'tableRow',
+              content: [cell('A merged note long enough to need more lines than the two rows it spans give it, wrapping here finally.', { rowspan: 2 }), cell('x1'), cell('y1')],
+            },
+            { type: 'tableRow', content: [cell('x2'), cell('y2')] },
+            { type: 'tableRow', content: [cell('after'), cell('z'), cell('z')] },
+          ],
+        },
+      ],
+    };
+    const f = save('rowspan.pdf', await renderBulletinPdf(v));
+    words = [...run('pdftotext', ['-bbox', '-f', '1', '-l', '1', f, '-']).matchAll(/xMin="([\d.]+)" yMin="([\d.]+)" xMax="([\d.]+)" yMax="([\d.]+)">([^<]*)</g)].map(
+      (m) => ({ xMin: +m[1], yMin: +m[2], xMax: +m[3], yMax: +m[4], text: m[5] }),
+    );
+    run('pdftoppm', ['-gray', '-r', String(72 * PX_PER_PT), '-f', '1', '-l', '1', f, path.join(dir, 'rowspan')]);
+    const pgm = readFileSync(path.join(dir, readdirSync(dir).find((n) => /^rowspan-\d+\.pgm$/.test(n))!));
+    // Binary PGM (P5): "P5 <width> <height> 255" then one byte per pixel, row by row.
+    const head = /^P5\s+(\d+)\s+(\d+)\s+255\s/.exec(pgm.subarray(0, 40).toString('latin1'))!;
+    const width = Number(head[1]);
+    const data = pgm.subarray(head[0].length);
+    px = (xPt, yPt) => data[Math.round(yPt * PX_PER_PT) * width + Math.round(xPt * PX_PER_PT)];
+  });
+  const word = (text: string) => words.find((w) => w.text === text)!;
+  /** Darkest pixel on a vertical / horizontal segment (points). */
+  const darkestDown = (xPt: number, y0: number, y1: number) => Math.min(...Array.from({ length: Math.round((y1 - y0) * PX_PER_PT) }, (_, i) => px(xPt, y0 + i / PX_PER_PT)));
+  const darkestAcross = (yPt: number, x0: number, x1: number) => Math.min(...Array.from({ length: Math.round((x1 - x0) * PX_PER_PT) }, (_, i) => px(x0 + i / PX_PER_PT, yPt)));
+
+  it('sets the spanning cell’s text at the top and keeps the rows it spans at their own height', () => {
+    const [p, v1, l, x1, x2, last, after] = ['Probability', '2.0e-7', 'linear', 'x1', 'x2', 'finally.', 'after'].map(word);
+    expect(Math.abs(p.yMin - v1.yMin)).toBeLessThan(0.5); // top-aligned like its neighbour in the first row
+    // The second spanned row follows the first at the pitch of one-line rows (as x2 follows x1)...
+    expect(Math.abs(l.yMin - v1.yMin - (x2.yMin - x1.yMin))).toBeLessThan(0.5);
+    // ...even when the spanning cell is taller than both rows: x2 starts beside the note's text, not below it, and
+    // the next row starts below the note (the last spanned row grew to hold it).
+    expect(x2.yMin).toBeLessThan(last.yMin);
+    expect(after.yMin).toBeGreaterThan(last.yMax);
+  });
+
+  it('draws one box: no rule and no stripe across the spanning cell, rules beside it', () => {
+    const [p, v1, l] = ['Probability', '2.0e-7', 'linear'].map(word);
+    // Between the first row's text and the second row's text: the rule between the rows is there in the value column
+    // (left padding of "2.0e-7") and absent in the spanning cell's column.
+    const xValuePad = v1.xMin - 1.5;
+    expect(darkestDown(xValuePad, v1.yMax + 0.5, l.yMin - 0.5)).toBeLessThan(240);
+    expect(darkestDown(p.xMin + 2, p.yMax + 0.5, l.yMax)).toBeGreaterThan(250);
+    // The second body row is striped; the spanning cell keeps its first row's white across it.
+    const yMid = (l.yMin + l.yMax) / 2;
+    expect(px(xValuePad, yMid)).toBeLessThan(255);
+    expect(px(xValuePad, yMid)).toBeGreaterThan(240);
+    expect(px(p.xMin + 2, yMid)).toBe(255);
+    // A rule on the spanning cell's side, between its text and the value column's text.
+    expect(darkestAcross(yMid, p.xMax + 1, l.xMin - 1)).toBeLessThan(240);
+  });
+});
+
 describe('images', () => {
   it('embeds a data-URL image from the document and names an external one instead of fetching it', () => {
     // pdfimages -list: header lines, then one line per image with its pixel size

@@ -198,19 +198,21 @@ function docTable(ctx: Ctx, node: PdfDocNode, box: Box): void {
   const first = rows[0].content ?? [];
   const headerRow = first.length > 0 && first.every((c) => c.type === 'tableHeader');
   const num = (v: unknown, d: number) => (typeof v === 'number' && Number.isInteger(v) && v >= 1 ? Math.min(v, 50) : d);
-  // Place cells on a grid: colspan widens a cell; a rowspan keeps its columns free in the rows below (the later rows
-  // of a merged cell are left blank, drawn as ordinary cells).
+  // Place cells on a grid: colspan widens a cell; a rowspan keeps its columns free in the rows below, where the slots
+  // are marked covered (rowspan 0) and table.ts draws the merged cell as one box across its rows.
   const occupied: number[] = []; // per column: rows still covered by a rowspan from above
-  const grid: { cells: Run[][]; spans: number[] }[] = [];
+  const grid: { cells: Run[][]; spans: number[]; rowspans: number[] }[] = [];
   let cols = 1;
   for (const r of rows) {
     const cells: Run[][] = [];
     const spans: number[] = [];
+    const rowspans: number[] = [];
     let col = 0;
     const skipCovered = () => {
       while ((occupied[col] ?? 0) > 0) {
         cells.push([]);
         spans.push(1);
+        rowspans.push(0);
         col++;
       }
     };
@@ -220,12 +222,13 @@ function docTable(ctx: Ctx, node: PdfDocNode, box: Box): void {
       const rowspan = num(c.attrs?.rowspan, 1);
       cells.push(cellRuns(c));
       spans.push(colspan);
+      rowspans.push(rowspan);
       for (let k = 0; k < colspan; k++) occupied[col + k] = Math.max(occupied[col + k] ?? 0, rowspan);
       col += colspan;
     }
     skipCovered();
     cols = Math.max(cols, col);
-    grid.push({ cells, spans });
+    grid.push({ cells, spans, rowspans });
     for (let k = 0; k < occupied.length; k++) if ((occupied[k] ?? 0) > 0) occupied[k]--;
   }
   for (const g of grid) {
@@ -233,6 +236,7 @@ function docTable(ctx: Ctx, node: PdfDocNode, box: Box): void {
     for (let k = used; k < cols; k++) {
       g.cells.push([]);
       g.spans.push(1);
+      g.rowspans.push(1);
     }
   }
   // Column widths from the editor's resized widths (colwidth, px) when the first row gives them all.
@@ -253,6 +257,7 @@ function docTable(ctx: Ctx, node: PdfDocNode, box: Box): void {
       headerSpans: headerRow ? grid[0].spans : undefined,
       rows: body.map((g) => g.cells),
       rowSpans: body.map((g) => g.spans),
+      cellRowspans: body.map((g) => g.rowspans),
       size: FONT_SIZE.table + 0.5,
     },
     box,
