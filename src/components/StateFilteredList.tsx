@@ -3,7 +3,8 @@
 import type { ReactNode } from 'react';
 import { useSearchParams } from 'react-router';
 import type { UseQueryResult } from '@tanstack/react-query';
-import { ErrorState, LoadingState, SelectField } from './ui';
+import { QueryTable } from './QueryTable';
+import { SelectField } from './ui';
 
 /** The state filter from ?state= (anything not in `states` is "any", ''); setting it replaces the history entry. */
 export function useStateFilter<S extends string>(states: readonly S[]): [S | '', (s: S | '') => void] {
@@ -60,30 +61,14 @@ export function StateFilteredList<S extends string, T>({
           ))}
         </SelectField>
       </div>
-      {list.isPending && <LoadingState label={`Loading ${noun}s…`} />}
-      {list.isError && <ErrorState error={list.error} onRetry={() => list.refetch()} />}
-      {list.isSuccess &&
-        (list.data.length === 0 ? (
-          <p className="text-ink-soft">
-            No {noun}
-            {state ? ' in this state' : ' yet'}.
-          </p>
-        ) : (
-          <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-            <table className={`w-full ${tableClassName} text-left text-sm`}>
-              <thead className="bg-accent-50">
-                <tr>
-                  {columns.map((c) => (
-                    <th key={c} scope="col" className="px-3 py-2">
-                      {c}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody>{list.data.map(row)}</tbody>
-            </table>
-          </div>
-        ))}
+      <QueryTable
+        list={list}
+        loadingLabel={`Loading ${noun}s…`}
+        empty={`No ${noun}${state ? ' in this state' : ' yet'}.`}
+        tableClassName={tableClassName}
+        columns={columns}
+        row={row}
+      />
     </section>
   );
 }

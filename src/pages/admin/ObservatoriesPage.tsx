@@ -6,7 +6,8 @@ import type { ObservatoryRow } from '../../../shared/schemas/odApi';
 import { useDeleteObservatory, useObservatories } from '../../api/od';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { ConfirmDialog } from '../../components/ConfirmDialog';
-import { Button, ErrorState, LoadingState, Notice, PageHeader } from '../../components/ui';
+import { Button, Notice, PageHeader } from '../../components/ui';
+import { QueryTable } from '../../components/QueryTable';
 import { formatUtc } from '../objects/format';
 import { ObservatoryForm } from './ObservatoryForm';
 
@@ -55,49 +56,33 @@ export function ObservatoriesPage() {
         )}
         <section aria-labelledby="observatory-list-heading">
           <h2 id="observatory-list-heading" className="mb-3 text-lg font-semibold">The office's observatories</h2>
-          {list.isPending ? (
-            <LoadingState label="Loading observatories…" />
-          ) : list.isError ? (
-            <ErrorState error={list.error} onRetry={() => void list.refetch()} title="The observatories could not be loaded" />
-          ) : list.data.length === 0 ? (
-            <p className="text-ink-soft">No observatory yet.</p>
-          ) : (
-            <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-              <table className="w-full min-w-[48rem] text-left text-sm" data-testid="observatory-table">
-                <thead className="bg-accent-50">
-                  <tr>
-                    <th scope="col" className="px-3 py-2">Code</th>
-                    <th scope="col" className="px-3 py-2">Name</th>
-                    <th scope="col" className="px-3 py-2">East longitude</th>
-                    <th scope="col" className="px-3 py-2">Site</th>
-                    <th scope="col" className="px-3 py-2">Observations</th>
-                    <th scope="col" className="px-3 py-2">Updated</th>
-                    {canManage && <th scope="col" className="px-3 py-2"><span className="sr-only">Actions</span></th>}
-                  </tr>
-                </thead>
-                <tbody>
-                  {list.data.map((o) => (
-                    <tr key={o.code} className="border-t border-rule tabular-nums" data-testid={`observatory-row-${o.code}`}>
-                      <th scope="row" className="px-3 py-2 font-semibold">{o.code}</th>
-                      <td className="px-3 py-2">{o.name}</td>
-                      <td className="px-3 py-2">{o.longitudeDeg}°</td>
-                      <td className="px-3 py-2">{site(o)}</td>
-                      <td className="px-3 py-2">{o.observationCount}</td>
-                      <td className="px-3 py-2 whitespace-nowrap">{formatUtc(o.updatedAt)}</td>
-                      {canManage && (
-                        <td className="px-3 py-2 whitespace-nowrap">
-                          <Button variant="quiet" onClick={() => { setMessage(null); setEditing(o); }} aria-label={`Edit ${o.code}`}>Edit</Button>
-                          <Button variant="quiet" className="text-danger-700" onClick={() => { setMessage(null); remove.reset(); setDeleting(o); }} aria-label={`Delete ${o.code}`}>
-                            Delete
-                          </Button>
-                        </td>
-                      )}
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          )}
+          <QueryTable
+            list={list}
+            loadingLabel="Loading observatories…"
+            errorTitle="The observatories could not be loaded"
+            empty="No observatory yet."
+            tableClassName="min-w-[48rem]"
+            testId="observatory-table"
+            columns={['Code', 'Name', 'East longitude', 'Site', 'Observations', 'Updated', canManage && <span className="sr-only">Actions</span>]}
+            row={(o) => (
+              <tr key={o.code} className="border-t border-rule tabular-nums" data-testid={`observatory-row-${o.code}`}>
+                <th scope="row" className="px-3 py-2 font-semibold">{o.code}</th>
+                <td className="px-3 py-2">{o.name}</td>
+                <td className="px-3 py-2">{o.longitudeDeg}°</td>
+                <td className="px-3 py-2">{site(o)}</td>
+                <td className="px-3 py-2">{o.observationCount}</td>
+                <td className="px-3 py-2 whitespace-nowrap">{formatUtc(o.updatedAt)}</td>
+                {canManage && (
+                  <td className="px-3 py-2 whitespace-nowrap">
+                    <Button variant="quiet" onClick={() => { setMessage(null); setEditing(o); }} aria-label={`Edit ${o.code}`}>Edit</Button>
+                    <Button variant="quiet" className="text-danger-700" onClick={() => { setMessage(null); remove.reset(); setDeleting(o); }} aria-label={`Delete ${o.code}`}>
+                      Delete
+                    </Button>
+                  </td>
+                )}
+              </tr>
+            )}
+          />
         </section>
       </div>
       <ConfirmDialog

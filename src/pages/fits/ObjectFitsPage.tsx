@@ -5,6 +5,7 @@ import { useAstrometry, useObjectFits } from '../../api/od';
 import { useObject, useSolutions } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { ErrorState, LoadingState, PageHeader, buttonClass } from '../../components/ui';
+import { QueryTable } from '../../components/QueryTable';
 import { formatUtc } from '../objects/format';
 import { odAccess } from './access';
 import { FIT_LABELS } from './format';
@@ -42,52 +43,37 @@ export function ObjectFitsPage() {
         )}
         <section aria-labelledby="fit-list-heading">
           <h2 id="fit-list-heading" className="mb-3 text-lg font-semibold">Fits</h2>
-          {fits.isPending ? (
-            <LoadingState label="Loading fits…" />
-          ) : fits.isError ? (
-            <ErrorState error={fits.error} onRetry={() => void fits.refetch()} title="The fits could not be loaded" />
-          ) : fits.data.length === 0 ? (
-            <p className="text-ink-soft">No fit yet.</p>
-          ) : (
-            <div className="overflow-x-auto rounded-lg border border-rule bg-white">
-              <table className="w-full min-w-[48rem] text-left text-sm" data-testid="fit-list">
-                <thead className="bg-accent-50">
-                  <tr>
-                    <th scope="col" className="px-3 py-2">Fit</th>
-                    <th scope="col" className="px-3 py-2">Status</th>
-                    <th scope="col" className="px-3 py-2">Model</th>
-                    <th scope="col" className="px-3 py-2">Observations</th>
-                    <th scope="col" className="px-3 py-2">Requested</th>
-                    <th scope="col" className="px-3 py-2">Adopted</th>
-                  </tr>
-                </thead>
-                <tbody>
-                  {fits.data.map((f) => (
-                    <tr key={f.id} className="border-t border-rule tabular-nums" data-testid={`fit-row-${f.id}`}>
-                      <td className="px-3 py-2 font-semibold"><Link to={`/fits/${f.id}`}>Fit #{f.id}</Link></td>
-                      <td className="px-3 py-2">
-                        <FitStatusBadge status={f.status} /> <span className="text-xs text-ink-soft">{fitProgressText(f)}</span>
-                        {f.status === 'failed' && f.error && <p className="mt-1 max-w-sm text-xs text-danger-700">{f.error}</p>}
-                      </td>
-                      <td className="px-3 py-2">
-                        {f.settings.nonGravTerms.length === 0 ? 'Gravity only' : `Gravity only vs ${f.settings.nonGravTerms.map((t) => t.toUpperCase()).join(', ')}`}
-                        {f.settings.epoch ? ` · epoch ${f.settings.epoch}` : ''}
-                      </td>
-                      <td className="px-3 py-2">{f.observationCount}</td>
-                      <td className="px-3 py-2">{formatUtc(f.createdAt)}{f.createdByName ? ` · ${f.createdByName}` : ''}</td>
-                      <td className="px-3 py-2">
-                        {f.adopted ? (
-                          <Link to={`/objects/${f.objectId}?version=${f.adopted.solutionVersion}`}>v{f.adopted.solutionVersion} ({FIT_LABELS[f.adopted.which].toLowerCase()})</Link>
-                        ) : (
-                          '—'
-                        )}
-                      </td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          )}
+          <QueryTable
+            list={fits}
+            loadingLabel="Loading fits…"
+            errorTitle="The fits could not be loaded"
+            empty="No fit yet."
+            tableClassName="min-w-[48rem]"
+            testId="fit-list"
+            columns={['Fit', 'Status', 'Model', 'Observations', 'Requested', 'Adopted']}
+            row={(f) => (
+              <tr key={f.id} className="border-t border-rule tabular-nums" data-testid={`fit-row-${f.id}`}>
+                <td className="px-3 py-2 font-semibold"><Link to={`/fits/${f.id}`}>Fit #{f.id}</Link></td>
+                <td className="px-3 py-2">
+                  <FitStatusBadge status={f.status} /> <span className="text-xs text-ink-soft">{fitProgressText(f)}</span>
+                  {f.status === 'failed' && f.error && <p className="mt-1 max-w-sm text-xs text-danger-700">{f.error}</p>}
+                </td>
+                <td className="px-3 py-2">
+                  {f.settings.nonGravTerms.length === 0 ? 'Gravity only' : `Gravity only vs ${f.settings.nonGravTerms.map((t) => t.toUpperCase()).join(', ')}`}
+                  {f.settings.epoch ? ` · epoch ${f.settings.epoch}` : ''}
+                </td>
+                <td className="px-3 py-2">{f.observationCount}</td>
+                <td className="px-3 py-2">{formatUtc(f.createdAt)}{f.createdByName ? ` · ${f.createdByName}` : ''}</td>
+                <td className="px-3 py-2">
+                  {f.adopted ? (
+                    <Link to={`/objects/${f.objectId}?version=${f.adopted.solutionVersion}`}>v{f.adopted.solutionVersion} ({FIT_LABELS[f.adopted.which].toLowerCase()})</Link>
+                  ) : (
+                    '—'
+                  )}
+                </td>
+              </tr>
+            )}
+          />
         </section>
       </div>
     </div>
