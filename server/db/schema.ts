@@ -180,6 +180,32 @@ export const orbitSolutions = sqliteTable(
 );
 
 /**
+ * Columns every durable job table has (assessment runs, orbit fits): the shared lease runner
+ * (server/services/jobs/leaseRunner.ts) reads and writes them by these names. Functions, so each table gets its own
+ * column builders; spread in this order the generated SQL is what the migrations already created.
+ */
+function jobProgressColumns() {
+  return {
+    status: text('status', { enum: RUN_STATUSES }).notNull().default('queued'),
+    progressStage: text('progress_stage'),
+    progressDone: real('progress_done').notNull().default(0),
+    progressTotal: real('progress_total').notNull().default(0),
+  };
+}
+function jobLeaseColumns() {
+  return {
+    error: text('error'),
+    attempts: integer('attempts').notNull().default(0),
+    leaseOwner: text('lease_owner'),
+    leaseExpiresAt: integer('lease_expires_at', { mode: 'timestamp_ms' }),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
+    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
+    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+  };
+}
+
+/**
  * Assessment runs: durable engine jobs (server/services/runs). A run is inserted 'queued'; a runner claims it
  * atomically (status 'running' with its lease owner and expiry, attempts + 1), heartbeats the lease while the
  * engine works, and finishes it 'done' (result JSON), 'failed' (error) or 'cancelled'. A 'running' run whose lease
@@ -200,20 +226,10 @@ export const assessmentRuns = sqliteTable(
     solutionVersion: integer('solution_version').notNull(),
     inputSha256: text('input_sha256').notNull(),
     optionsJson: text('options_json').notNull(),
-    status: text('status', { enum: RUN_STATUSES }).notNull().default('queued'),
-    progressStage: text('progress_stage'),
-    progressDone: real('progress_done').notNull().default(0),
-    progressTotal: real('progress_total').notNull().default(0),
+    ...jobProgressColumns(),
     rateClonesPerS: real('rate_clones_per_s'),
     etaS: real('eta_s'),
-    error: text('error'),
-    attempts: integer('attempts').notNull().default(0),
-    leaseOwner: text('lease_owner'),
-    leaseExpiresAt: integer('lease_expires_at', { mode: 'timestamp_ms' }),
-    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
-    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
-    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
-    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+    ...jobLeaseColumns(),
     provenanceJson: text('provenance_json'),
     resultJson: text('result_json'),
   },
@@ -599,18 +615,8 @@ export const orbitFits = sqliteTable(
     observationsSha256: text('observations_sha256').notNull(),
     observationCount: integer('observation_count').notNull(),
     observatoriesJson: text('observatories_json').notNull(),
-    status: text('status', { enum: RUN_STATUSES }).notNull().default('queued'),
-    progressStage: text('progress_stage'),
-    progressDone: real('progress_done').notNull().default(0),
-    progressTotal: real('progress_total').notNull().default(0),
-    error: text('error'),
-    attempts: integer('attempts').notNull().default(0),
-    leaseOwner: text('lease_owner'),
-    leaseExpiresAt: integer('lease_expires_at', { mode: 'timestamp_ms' }),
-    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
-    createdAt: integer('created_at', { mode: 'timestamp_ms' }).notNull().default(nowMs),
-    startedAt: integer('started_at', { mode: 'timestamp_ms' }),
-    finishedAt: integer('finished_at', { mode: 'timestamp_ms' }),
+    ...jobProgressColumns(),
+    ...jobLeaseColumns(),
     resultJson: text('result_json'),
     adoptedWhich: text('adopted_which', { enum: ['gravity-only', 'non-gravitational'] }),
     adoptedSolutionId: integer('adopted_solution_id').references(() => orbitSolutions.id, { onDelete: 'restrict' }),
