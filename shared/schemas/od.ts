@@ -249,8 +249,16 @@ export type FitResult = z.infer<typeof fitResultSchema>;
 
 export const fitComparisonSchema = z.object({
   addedParameters: z.array(nonGravTermSchema),
-  /** chi²(gravity-only) - chi²(non-grav), same used observations. */
+  /**
+   * chi²(gravity-only) - chi²(non-grav) over one set of observations: the set the non-gravitational fit uses. When
+   * the gravity-only fit had rejected some of them, a gravity-only fit is redone on exactly that set (no outlier
+   * passes) so both models are fitted to the same data (nested likelihood-ratio test).
+   */
   deltaChiSquare: finite,
+  /** How many observations the Δχ² is summed over (absent in fits stored before the field existed). */
+  observationsCompared: z.number().int().optional(),
+  /** Whether the gravity-only fit was redone on the non-gravitational fit's observation set for the Δχ². */
+  gravityOnlyRefitted: z.boolean().optional(),
   /** P(chi²_k >= deltaChiSquare) for k added parameters (likelihood-ratio test). */
   pValue: finite,
   /** The same p-value as a two-sided Gaussian sigma. */

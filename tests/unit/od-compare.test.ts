@@ -135,6 +135,25 @@ describe('compareFits (METHODS §9.2: Δχ², likelihood-ratio p-value, A_k/σ, 
     expect(withEnc.verdict).toMatch(/2032-11-08: distance 1-sigma 120 km gravity-only, 2400 km with A2/);
   });
 
+  it('with a same-set gravity-only refit, Δχ² is summed over every observation the non-grav fit uses', () => {
+    // the gravity-only fit used 30 of 40 (10 rejected), the non-grav fit all 40: without the refit Δχ² would
+    // cover only the 30 both use; with it (ξᵀWξ = 3 each on all 40) Δχ² = 40 × (3 − 1) = 80
+    const g = fakeFit('gravity-only', 3, 6);
+    const residuals = g.residuals.map((r, i) => (i < 10 ? { ...r, status: 'rejected' as const } : r));
+    const cov = Array.from({ length: 7 }, (_, i) => Array.from({ length: 7 }, (_, j) => (i === j ? 1e-12 : 0)));
+    const ng = fakeFit('non-gravitational', 1, 7, { nonGrav: { a1: 0, a2: 1e-7, a3: 0, law: 'inverse-square' }, parameters: ['x', 'y', 'z', 'vx', 'vy', 'vz', 'a2'], covariance: cov });
+    const plain = { gravityOnly: new Float64Array(40).fill(3), nonGrav: new Float64Array(40).fill(1) };
+    const without = compareFits({ ...g, residuals }, ng, ['a2'], plain);
+    expect(without.deltaChiSquare).toBeCloseTo(60, 10);
+    expect(without.observationsCompared).toBe(30);
+    expect(without.gravityOnlyRefitted).toBe(false);
+    const withRefit = compareFits({ ...g, residuals }, ng, ['a2'], plain, { plainChi2: new Float64Array(40).fill(3), used: new Uint8Array(40).fill(1) });
+    expect(withRefit.deltaChiSquare).toBeCloseTo(80, 10);
+    expect(withRefit.observationsCompared).toBe(40);
+    expect(withRefit.gravityOnlyRefitted).toBe(true);
+    expect(withRefit.verdict).toContain('over the 40 observations the non-gravitational fit uses (gravity-only refitted to them)');
+  });
+
   it('a small Δχ² keeps the gravity-only fit', () => {
     const g = fakeFit('gravity-only', 1.02, 6);
     const cov = Array.from({ length: 7 }, (_, i) => Array.from({ length: 7 }, (_, j) => (i === j ? 1e-12 : 0)));

@@ -295,6 +295,12 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       const c = r.comparison!;
       expect(ng.status).toBe('converged');
       expect(c.deltaChiSquare).toBeGreaterThan(9); // > 3 sigma for one added parameter
+      // the gravity-only fit rejected observations the non-grav fit uses, so for Δχ² it was redone on the
+      // non-grav fit's set: both models fitted to the same data (nested likelihood-ratio test; common practice,
+      // no source), Δχ² summed over every observation the non-grav fit uses
+      expect(c.gravityOnlyRefitted).toBe(true);
+      expect(c.observationsCompared).toBe(ng.observationsUsed);
+      expect(c.verdict).toContain(`over the ${ng.observationsUsed} observations the non-gravitational fit uses`);
       expect(c.significanceSigma).toBeGreaterThan(3);
       expect(c.pValue).toBeLessThan(0.0027);
       const a2 = c.parameterSignificance.find((p) => p.term === 'a2')!;

@@ -1,8 +1,10 @@
 /**
  * Gravity-only versus non-gravitational fit (METHODS.md §9.2; issue 8 item 5):
  *
- * - Δχ² = χ²(gravity-only) − χ²(non-grav) summed over the observations used in BOTH fits (plain ξᵀWξ, not the
- *   outlier χ_i²), its p-value P(χ²_k ≥ Δχ²) for k added parameters (likelihood-ratio test), and that p-value as a
+ * - Δχ² = χ²(gravity-only) − χ²(non-grav) summed over one observation set (plain ξᵀWξ, not the outlier χ_i²): the
+ *   set the non-gravitational fit uses. A gravity-only fit whose outlier passes rejected some of those (a wrong
+ *   model makes good observations look bad) is first redone on exactly that set by the caller (fit.ts), so both
+ *   models are least-squares fits to the same data and Δχ² ≥ 0 is the nested-model statistic; its p-value P(χ²_k ≥ Δχ²) for k added parameters (likelihood-ratio test), and that p-value as a
  *   two-sided Gaussian sigma (statistics.ts);
  * - |A_k|/σ_k (detections are usually quoted at S/N ≳ 3; Farnocchia et al. 2013 [M via METHODS §9.2]);
  * - the 1-sigma of every element in both fits and their ratio (the added parameters widen them, METHODS §9.2);
@@ -116,26 +118,35 @@ const fmt = (x: number) => {
 
 /**
  * Compare a gravity-only and a non-gravitational fit of the same observations. plainChi2 holds, for each fit,
- * ξ_iᵀ W_i ξ_i of every observation (same order as the residuals).
+ * ξ_iᵀ W_i ξ_i of every observation (same order as the residuals). sameSet, when given, is a gravity-only fit
+ * redone on the non-gravitational fit's used set: its ξᵀWξ per observation and its used flags replace the
+ * gravity-only fit's for the Δχ² (everything else still describes the gravity-only fit as it was run).
  */
 export function compareFits(
   gravity: FitResult,
   nonGrav: FitResult,
   terms: readonly NonGravTerm[],
   plainChi2: { gravityOnly: ArrayLike<number>; nonGrav: ArrayLike<number> },
+  sameSet?: { plainChi2: ArrayLike<number>; used: ArrayLike<number> },
 ): FitComparison {
-  const usedG = new Set(gravity.residuals.filter((r) => r.status === 'used').map((r) => r.index));
+  const usedG = sameSet
+    ? new Set(Array.from(sameSet.used).flatMap((u, i) => (u ? [i] : [])))
+    : new Set(gravity.residuals.filter((r) => r.status === 'used').map((r) => r.index));
+  const chi2G = sameSet ? sameSet.plainChi2 : plainChi2.gravityOnly;
   let chiG = 0;
   let chiN = 0;
   let common = 0;
   for (const r of nonGrav.residuals) {
     if (r.status !== 'used' || !usedG.has(r.index)) continue;
-    chiG += plainChi2.gravityOnly[r.index];
+    chiG += chi2G[r.index];
     chiN += plainChi2.nonGrav[r.index];
     common++;
   }
   const k = terms.length;
   const delta = chiG - chiN;
+  const setText = sameSet
+    ? `over the ${common} observations the non-gravitational fit uses (gravity-only refitted to them)`
+    : `over ${common} common observations`;
   const logP = delta > 0 ? logChiSquareSurvival(delta, k) : 0;
   const pValue = Math.exp(logP);
   const significanceSigma = sigmaFromLogPValue(Math.max(logP, MIN_LOG_P));
@@ -170,17 +181,17 @@ export function compareFits(
     verdict = `The gravity-only fit did not converge (${gravity.message ?? 'no message'}) while the fit with ${termsText} did; the non-gravitational fit is the usable one.`;
   } else if (significanceSigma >= 3 && bestSn && bestSn.signalToNoise >= 3) {
     verdict =
-      `The non-gravitational fit is favoured: adding ${termsText} lowers chi-square by ${fmt(delta)} over ${common} common observations ` +
-      `(${fmt(significanceSigma)} sigma for ${k} added parameter${k > 1 ? 's' : ''}), ${bestSn.term.toUpperCase()} is ${fmt(bestSn.signalToNoise)} times its uncertainty` +
+      `The non-gravitational fit is favoured: adding ${termsText} lowers chi-square by ${fmt(delta)} ` +
+      `(${fmt(significanceSigma)} sigma for ${k} added parameter${k > 1 ? 's' : ''}) ${setText}, ${bestSn.term.toUpperCase()} is ${fmt(bestSn.signalToNoise)} times its uncertainty` +
       (tg.sigma >= 3 && tn.sigma < tg.sigma ? `, and the systematic trend in the gravity-only residuals (${fmt(tg.sigma)} sigma) drops to ${fmt(tn.sigma)} sigma` : '') +
       (widen !== null ? `. The price is wider uncertainties (element 1-sigma up to ${fmt(widen)} times larger).` : '.');
   } else if (significanceSigma >= 2 || (bestSn && bestSn.signalToNoise >= 2)) {
     verdict =
-      `Marginal: adding ${termsText} lowers chi-square by ${fmt(delta)} (${fmt(significanceSigma)} sigma) and the largest A_k is ${fmt(bestSn?.signalToNoise ?? 0)} times its uncertainty, ` +
+      `Marginal: adding ${termsText} lowers chi-square by ${fmt(delta)} (${fmt(significanceSigma)} sigma) ${setText}, and the largest A_k is ${fmt(bestSn?.signalToNoise ?? 0)} times its uncertainty, ` +
       `below the usual detection level of 3; the gravity-only fit remains adequate unless the physics calls for the non-gravitational terms.`;
   } else {
     verdict =
-      `The gravity-only fit is adequate: adding ${termsText} lowers chi-square by only ${fmt(delta)} (${fmt(significanceSigma)} sigma) and no A_k reaches 3 times its uncertainty; ` +
+      `The gravity-only fit is adequate: adding ${termsText} lowers chi-square by only ${fmt(delta)} (${fmt(significanceSigma)} sigma) ${setText}, and no A_k reaches 3 times its uncertainty; ` +
       `the non-gravitational fit would only widen the uncertainties${widen !== null ? ` (up to ${fmt(widen)} times)` : ''}.`;
   }
   const eg = gravity.encounter;
@@ -193,6 +204,8 @@ export function compareFits(
   return {
     addedParameters: [...terms],
     deltaChiSquare: delta,
+    observationsCompared: common,
+    gravityOnlyRefitted: Boolean(sameSet),
     pValue,
     significanceSigma,
     parameterSignificance,

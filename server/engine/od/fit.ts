@@ -590,6 +590,12 @@ function unusedStationWeightWarnings(stationSigma: ReadonlyMap<string, number>, 
     .map((stn) => `station ${stn} is reweighted in the settings but has no usable observation in this fit; its weight was not used`);
 }
 
+function sameFlags(a: Uint8Array, b: Uint8Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
 export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbitHooks = {}): OrbitDeterminationResult {
   const { observations, observatories, settings } = input;
   const checkAbort = () => {
@@ -772,7 +778,25 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
     progress('encounter', fits.length, fits.length);
   }
 
-  const comparison = ng ? compareFits(grav.result, ng.result, terms, { gravityOnly: grav.plainChi2, nonGrav: ng.plainChi2 }) : null;
+  // Δχ² needs both models fitted to one set of observations: when the gravity-only outlier passes rejected
+  // observations the non-gravitational fit uses (or the reverse), the gravity-only fit is redone on the
+  // non-gravitational fit's set, without outlier passes (compare.ts).
+  let sameSet: { plainChi2: Float64Array; used: Uint8Array } | undefined;
+  if (ng && ng.result.status === 'converged' && !sameFlags(grav.used, ng.used)) {
+    checkAbort();
+    progress('gravity-only fit on the non-grav set', 0, 1);
+    const refitWarnings: string[] = [];
+    try {
+      const refit = runFit(arc, epochTdbDays, 'gravity-only', [], { ...settings, rejectOutliers: false }, Float64Array.from(grav.params.subarray(0, 6)), ng.used, progress, checkAbort, refitWarnings);
+      if (refit.result.status === 'converged') sameSet = { plainChi2: refit.plainChi2, used: refit.used };
+      else warnings.push(`the gravity-only fit on the non-gravitational fit's observations ${refit.result.status}; Δχ² is taken over the observations both fits use`);
+    } catch (err) {
+      if (err instanceof FitAbortedError) throw err;
+      warnings.push(`the gravity-only fit on the non-gravitational fit's observations failed (${(err as Error).message}); Δχ² is taken over the observations both fits use`);
+    }
+    progress('gravity-only fit on the non-grav set', 1, 1);
+  }
+  const comparison = ng ? compareFits(grav.result, ng.result, terms, { gravityOnly: grav.plainChi2, nonGrav: ng.plainChi2 }, sameSet) : null;
   const stations = [...new Set(usable.map((i) => observations[i].stn))].sort();
   return {
     engineVersion: engineVersion('orbit determination'),

@@ -66,6 +66,14 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
             <Stat label={`p-value (χ², ${k} dof)`} value={formatP(comparison.pValue)} testId="p-value" />
             <Stat label="Significance" value={sigmaText(comparison.significanceSigma)} testId="significance" />
           </dl>
+          {comparison.observationsCompared !== undefined && (
+            <p className="mt-2 text-xs text-ink-soft" data-testid="delta-chi-square-set">
+              Δχ² over the {comparison.observationsCompared} observations{' '}
+              {comparison.gravityOnlyRefitted
+                ? 'the non-gravitational fit uses; the gravity-only fit had rejected some of them and was refitted to exactly this set, so both models are fitted to the same data.'
+                : 'both fits use.'}
+            </p>
+          )}
           <table className="mt-3 w-full text-sm tabular-nums">
             <thead>
               <tr className="text-left text-ink-soft">
