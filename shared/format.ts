@@ -281,6 +281,16 @@ export function formatDiameterRange(d: RangeInput): string {
 }
 
 /** "12.34 km/s". */
+/**
+ * Unbound significance S = (e − 1)/σe (METHODS.md §3) for a table cell: '—' without a covariance; a bound orbit
+ * (S < 0) says so; beyond 1000 σ the exact figure says nothing more than "far beyond any doubt".
+ */
+export function formatUnboundSignificance(s: number | null | undefined): string {
+  if (s === null || s === undefined || !Number.isFinite(s)) return '—';
+  const size = Math.abs(s) >= 1000 ? '> 1000 σ' : `${Math.abs(s).toFixed(1)} σ`;
+  return s >= 0 ? size : `bound (e below 1 by ${size})`;
+}
+
 export function formatSpeedKmS(v: number | null | undefined, decimals = 2): string {
   if (!isNum(v)) return '—';
   return `${v.toFixed(decimals)} km/s`;

@@ -12,6 +12,7 @@ import {
   formatPalermo,
   formatProbability,
   formatTdbJd,
+  formatUnboundSignificance,
   formatUpperBound,
   formatUtc,
 } from '../../shared/format';
@@ -170,5 +171,17 @@ describe('encounter table exports', async () => {
     const json = resultTablesJson(result, source) as { source: typeof source; encounters: unknown[] };
     expect(json.source.runId).toBe(9);
     expect(json.encounters).toHaveLength(2);
+  });
+});
+
+describe('unbound significance (e − 1)/σe in a table cell (METHODS.md §3; wording common practice, no source)', () => {
+  it('says bound for e < 1, caps far-beyond-doubt values and shows — without a covariance', () => {
+    expect(formatUnboundSignificance(null)).toBe('—');
+    expect(formatUnboundSignificance(NaN)).toBe('—');
+    expect(formatUnboundSignificance(12.34)).toBe('12.3 σ');
+    expect(formatUnboundSignificance(0)).toBe('0.0 σ');
+    expect(formatUnboundSignificance(23725)).toBe('> 1000 σ');
+    expect(formatUnboundSignificance(-2.04)).toBe('bound (e below 1 by 2.0 σ)');
+    expect(formatUnboundSignificance(-163090.9)).toBe('bound (e below 1 by > 1000 σ)');
   });
 });

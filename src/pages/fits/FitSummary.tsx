@@ -5,6 +5,7 @@ import type { ReactNode } from 'react';
 import type { FitResult, NonGravTerm } from '../../../shared/schemas/od';
 import { CAUTION_TEXT } from '../../components/CautionFooter';
 import { formatNumber, formatUtc } from '../objects/format';
+import { formatUnboundSignificance } from '../../../shared/format';
 import { ELEMENT_LABELS, FIT_LABELS, fixed, formatTdbDays } from './format';
 
 const STATUS_TEXT: Record<FitResult['status'], string> = { converged: 'Converged', 'not-converged': 'Did not converge', failed: 'Failed' };
@@ -52,7 +53,7 @@ export function FitSummary({ fits }: { fits: FitResult[] }) {
         return `${valueSigma(v, s, 4)}${s ? ` (${(Math.abs(v) / s).toFixed(1)})` : ''}`;
       },
     })),
-    { label: 'Unbound significance (e − 1)/σe', cells: (f) => (f.unboundSignificance === null ? '—' : `${f.unboundSignificance.toFixed(1)} σ`) },
+    { label: 'Unbound significance (e − 1)/σe', cells: (f) => formatUnboundSignificance(f.unboundSignificance) },
     { label: 'v∞ [km/s]', cells: (f) => fixed(f.vInfinityKmS, 3) },
     {
       label: 'Closest Earth approach after the arc',

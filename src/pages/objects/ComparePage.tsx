@@ -5,6 +5,7 @@ import type { CompareRow, SolutionSummary } from '../../../shared/schemas/object
 import { useCompare } from '../../api/objects';
 import { ErrorState, LoadingState, Notice, PageHeader } from '../../components/ui';
 import { formatNumber, formatRatio, formatSigma, formatUtc } from './format';
+import { formatUnboundSignificance } from '../../../shared/format';
 
 function ratioClass(r: number | null): string {
   if (r === null) return 'text-ink-soft';
@@ -52,7 +53,7 @@ export function ComparePage() {
   if (cmp.isPending) return <LoadingState label="Comparing…" />;
   if (cmp.isError) return <ErrorState error={cmp.error} onRetry={() => cmp.refetch()} />;
   const c = cmp.data;
-  const S = (s: SolutionSummary) => (s.classification.unboundSignificance === null ? '—' : `${s.classification.unboundSignificance.toFixed(1)} σ`);
+  const S = (s: SolutionSummary) => formatUnboundSignificance(s.classification.unboundSignificance);
   return (
     <div>
       <title>{`Compare v${a} and v${b} · Tocsin`}</title>

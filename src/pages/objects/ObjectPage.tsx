@@ -7,6 +7,7 @@ import { useObject, useSolutions, useUpdateObject } from '../../api/objects';
 import { useAppAbility } from '../../auth/useAppAbility';
 import { Button, Card, ErrorState, LoadingState, Notice, PageHeader, errorMessage } from '../../components/ui';
 import { formatNumber, formatUtc } from './format';
+import { formatUnboundSignificance } from '../../../shared/format';
 import { SolutionDetail } from './SolutionDetail';
 import { UploadSolutionForm } from './UploadSolutionForm';
 import { ObjectRuns } from '../runs/ObjectRuns';
@@ -80,7 +81,7 @@ function VersionsTable({ objectId, solutions, onShow }: { objectId: number; solu
                   <td className="px-3 py-2">
                     {formatNumber(s.classification.eccentricity, 7)} {s.classification.eccentricitySigma !== null ? `± ${formatNumber(s.classification.eccentricitySigma, 2)}` : ''}
                   </td>
-                  <td className="px-3 py-2">{s.classification.unboundSignificance === null ? '—' : `${s.classification.unboundSignificance.toFixed(1)} σ`}</td>
+                  <td className="px-3 py-2">{formatUnboundSignificance(s.classification.unboundSignificance)}</td>
                   <td className="px-3 py-2">{formatUtc(s.createdAt)}{s.createdBy ? ` · ${s.createdBy.name}` : ''}</td>
                 </tr>
               ))}
