@@ -77,7 +77,7 @@ export function EncounterTable({
     const maxAu = typeof result.provenance.maxAu === 'number' ? result.provenance.maxAu : null;
     return (
       <p className="text-ink-soft" data-testid="no-approaches">
-        No close approach{result.provenance.bodies ? ` to ${result.provenance.bodies.join(', ')}` : ''} within the reporting distance
+        No close approach{result.provenance.bodies ? ` to ${result.provenance.bodies.map(bodyName).join(', ')}` : ''} within the reporting distance
         {maxAu !== null ? ` (${maxAu} au = ${formatDistance(maxAu * 149_597_870.7, 'km')})` : ''} in this window (run #{source.runId}, solution v{source.solutionVersion}).
       </p>
     );
