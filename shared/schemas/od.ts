@@ -264,7 +264,10 @@ export const fitComparisonSchema = z.object({
   /** The same p-value as a two-sided Gaussian sigma. */
   significanceSigma: finite,
   parameterSignificance: z.array(z.object({ term: nonGravTermSchema, valueAuD2: finite, sigmaAuD2: finite, signalToNoise: finite })),
-  /** 1-sigma of each element in both fits and their ratio (non-grav / gravity-only). */
+  /**
+   * 1-sigma of each element in both fits and their ratio (non-grav / gravity-only); when gravityOnlyRefitted, the
+   * gravity-only sigmas are those of the refit on the non-gravitational fit's observations (same data).
+   */
   elementSigmas: z.array(z.object({ element: z.string(), gravityOnly: finite.nullable(), nonGrav: finite.nullable(), ratio: finite.nullable() })),
   /** Systematic trend in the gravity-only residuals (e.g. a fitted slope/curvature of the residuals in time, in sigma). */
   residualTrend: z.object({ gravityOnlySigma: finite, nonGravSigma: finite, description: z.string() }),

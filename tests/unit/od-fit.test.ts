@@ -311,8 +311,13 @@ describe('determineOrbit on synthetic arcs (issue 8 item 8)', () => {
       expect(c.residualTrend.nonGravSigma).toBeLessThan(c.residualTrend.gravityOnlySigma);
       expect(ng.rmsNormalized).toBeLessThan(r.gravityOnly.rmsNormalized);
       expect(ng.observationsUsed).toBeGreaterThan(r.gravityOnly.observationsUsed);
-      // (element sigmas are not compared here: the gravity-only fit rejected some observations its wrong model
-      // cannot fit, so the two fits use different sets; see the encounter test for the same-set comparison)
+      // the element sigmas are compared on the same data (the refit): adding a parameter never narrows the
+      // marginal covariance of the state (Schur complement, METHODS.md §9.2), up to the difference of the two
+      // linearisation points
+      for (const e of c.elementSigmas) {
+        console.log(`A2 arc: ${e.element} sigma ratio ${e.ratio?.toFixed(3)}`);
+        expect(e.ratio!).toBeGreaterThan(0.98);
+      }
       expect(c.verdict).toMatch(/non-gravitational fit is favoured/);
     },
     120_000,

@@ -7,7 +7,9 @@
  *   models are least-squares fits to the same data and Δχ² ≥ 0 is the nested-model statistic; its p-value P(χ²_k ≥ Δχ²) for k added parameters (likelihood-ratio test), and that p-value as a
  *   two-sided Gaussian sigma (statistics.ts);
  * - |A_k|/σ_k (detections are usually quoted at S/N ≳ 3; Farnocchia et al. 2013 [M via METHODS §9.2]);
- * - the 1-sigma of every element in both fits and their ratio (the added parameters widen them, METHODS §9.2);
+ * - the 1-sigma of every element in both fits and their ratio (the added parameters widen them, METHODS §9.2), the
+ *   gravity-only sigmas taken from the same-set refit when there is one (on the same data the Schur complement
+ *   makes every ratio >= 1 up to the difference of the two linearisation points);
  * - the encounter uncertainty of both fits, when they predict the same closest Earth approach, appended to the
  *   verdict (issue 8 item 5: how the predicted encounter uncertainty changes);
  * - a residual trend test for each fit: the normalised residuals (RA·cos δ / σ and δ / σ) of the used
@@ -120,14 +122,15 @@ const fmt = (x: number) => {
  * Compare a gravity-only and a non-gravitational fit of the same observations. plainChi2 holds, for each fit,
  * ξ_iᵀ W_i ξ_i of every observation (same order as the residuals). sameSet, when given, is a gravity-only fit
  * redone on the non-gravitational fit's used set: its ξᵀWξ per observation and its used flags replace the
- * gravity-only fit's for the Δχ² (everything else still describes the gravity-only fit as it was run).
+ * gravity-only fit's for the Δχ², and its element sigmas (when its result is given) for the sigma ratios; the
+ * residual trend and the encounter still describe the gravity-only fit as it was run.
  */
 export function compareFits(
   gravity: FitResult,
   nonGrav: FitResult,
   terms: readonly NonGravTerm[],
   plainChi2: { gravityOnly: ArrayLike<number>; nonGrav: ArrayLike<number> },
-  sameSet?: { plainChi2: ArrayLike<number>; used: ArrayLike<number> },
+  sameSet?: { plainChi2: ArrayLike<number>; used: ArrayLike<number>; result?: FitResult },
 ): FitComparison {
   const usedG = sameSet
     ? new Set(Array.from(sameSet.used).flatMap((u, i) => (u ? [i] : [])))
@@ -158,8 +161,10 @@ export function compareFits(
     return { term, valueAuD2: value, sigmaAuD2: sigma, signalToNoise: sigma > 0 ? Math.abs(value) / sigma : 0 };
   });
 
+  // the price of the added parameters is read on the same data: the refit's sigmas when there is one (METHODS §9.2)
+  const gravityForSigmas = sameSet?.result ?? gravity;
   const elementSigmas = Object.keys(ELEMENT_LABELS).map((key) => {
-    const g = gravity.elements ? (gravity.elements as Record<string, { sigma: number | null }>)[key].sigma : null;
+    const g = gravityForSigmas.elements ? (gravityForSigmas.elements as Record<string, { sigma: number | null }>)[key].sigma : null;
     const n = nonGrav.elements ? (nonGrav.elements as Record<string, { sigma: number | null }>)[key].sigma : null;
     return { element: key, gravityOnly: g, nonGrav: n, ratio: g !== null && n !== null && g > 0 ? n / g : null };
   });

@@ -781,14 +781,14 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   // Δχ² needs both models fitted to one set of observations: when the gravity-only outlier passes rejected
   // observations the non-gravitational fit uses (or the reverse), the gravity-only fit is redone on the
   // non-gravitational fit's set, without outlier passes (compare.ts).
-  let sameSet: { plainChi2: Float64Array; used: Uint8Array } | undefined;
+  let sameSet: { plainChi2: Float64Array; used: Uint8Array; result: FitResult } | undefined;
   if (ng && ng.result.status === 'converged' && !sameFlags(grav.used, ng.used)) {
     checkAbort();
     progress('gravity-only fit on the non-grav set', 0, 1);
     const refitWarnings: string[] = [];
     try {
       const refit = runFit(arc, epochTdbDays, 'gravity-only', [], { ...settings, rejectOutliers: false }, Float64Array.from(grav.params.subarray(0, 6)), ng.used, progress, checkAbort, refitWarnings);
-      if (refit.result.status === 'converged') sameSet = { plainChi2: refit.plainChi2, used: refit.used };
+      if (refit.result.status === 'converged') sameSet = { plainChi2: refit.plainChi2, used: refit.used, result: refit.result };
       else warnings.push(`the gravity-only fit on the non-gravitational fit's observations ${refit.result.status}; Δχ² is taken over the observations both fits use`);
     } catch (err) {
       if (err instanceof FitAbortedError) throw err;

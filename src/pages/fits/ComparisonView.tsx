@@ -118,6 +118,12 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
               ))}
             </tbody>
           </table>
+          {comparison.gravityOnlyRefitted && (
+            <p className="mt-2 text-xs text-ink-soft" data-testid="element-sigmas-refit">
+              Gravity-only 1σ here from the gravity-only fit redone on the non-gravitational fit's observations, so
+              both columns rest on the same data (the fit summary below shows the gravity-only fit as run).
+            </p>
+          )}
         </section>
 
         <section aria-labelledby="cmp-encounter">
