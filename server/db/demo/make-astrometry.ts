@@ -26,11 +26,11 @@
  * What the arc can show, measured with determineOrbit (A1, A2, inverse-square law; `npm run -s engine -- fit
  * server/db/demo/hso-26-u1.psv --observatories server/db/demo/hspdo-observatories.json --nongrav A1,A2 --law
  * inverse-square`): the three planted outliers are rejected; A1 = (1.56 ± 0.18)e-7 and A2 = (0.51 ± 0.20)e-7 AU/d²
- * against the true 1.6e-7 and 5.5e-8; Δχ² = 96 over the 187 observations the non-grav fit uses, the gravity-only fit refitted to that set (9.6 sigma for
- * two added parameters; 78 and 8.6 sigma over the observations both original fits used);
- * RMS 0.237″ gravity-only, 0.213″ with A1, A2; element 1-sigma 1.8 to 4.2 times wider on the same observations.
- * The visitor stays beyond 2 AU while it can be seen from the ground
- * (it reaches conjunction near the solution epoch), so with the version-2 terms of an earlier draft (A1 = 3.2e-8)
+ * against the true 1.6e-7 and 5.5e-8; Δχ² = 96 over the 187 observations the non-grav fit uses, the gravity-only
+ * fit refitted to that set (9.6 sigma for two added parameters; 78 and 8.6 sigma over the observations both
+ * original fits used); RMS 0.237″ gravity-only, 0.213″ with A1, A2; element 1-sigma 1.8 to 4.2 times wider on the
+ * same observations. The visitor stays beyond 2 AU while it can be seen from the ground (it reaches conjunction
+ * near the solution epoch), so with the version-2 terms of an earlier draft (A1 = 3.2e-8)
  * the arc gave only 1.4 sigma: the terms were raised so the demo shows a detection.
  */
 import fs from 'node:fs';
