@@ -182,6 +182,29 @@ export const residualSchema = z.object({
 });
 export type Residual = z.infer<typeof residualSchema>;
 
+/**
+ * Residual statistics of one observatory in one fit (server/engine/od/stationStatistics.ts): whether its stated
+ * uncertainties are borne out by its residuals, and its mean offset per coordinate. Null where no observation of
+ * the station was used.
+ */
+export const stationStatisticsSchema = z.object({
+  stn: z.string(),
+  used: z.number().int(),
+  notUsed: z.number().int(),
+  rmsArcsec: finite.nullable(),
+  rmsNormalized: finite.nullable(),
+  /** 'too-few': fewer than 3 used observations, no verdict. */
+  weights: z.enum(['consistent', 'understated', 'overstated', 'too-few']),
+  /** Two-sided p-value of sum (xi/sigma)^2 against chi-square with 2n degrees of freedom. */
+  weightsPValue: finite.nullable(),
+  offsetRaCosDecArcsec: finite.nullable(),
+  /** Offset / its standard error (scaled by the normalised RMS when above 1). */
+  offsetRaCosDecSigma: finite.nullable(),
+  offsetDecArcsec: finite.nullable(),
+  offsetDecSigma: finite.nullable(),
+});
+export type StationStatistics = z.infer<typeof stationStatisticsSchema>;
+
 export const fitIterationSchema = z.object({
   iteration: z.number().int().min(1),
   rmsNormalized: finite,
@@ -244,6 +267,8 @@ export const fitResultSchema = z.object({
   unboundSignificance: finite.nullable(),
   vInfinityKmS: finite.nullable(),
   encounter: encounterUncertaintySchema.nullable(),
+  /** Residual statistics by observatory (absent in fits stored before the field existed). */
+  stations: z.array(stationStatisticsSchema).optional(),
 });
 export type FitResult = z.infer<typeof fitResultSchema>;
 

@@ -181,6 +181,14 @@ describe('orbit determination in the browser', () => {
     expect((await comparison.getByTestId('significance').innerText()).trim()).toBe(`${Math.abs(sig) >= 1 ? sig.toFixed(1) : Number(sig.toPrecision(2))} σ`);
     for (const p of result.comparison!.parameterSignificance) expect(await comparison.getByTestId(`significance-${p.term}`).innerText()).toContain(p.signalToNoise.toFixed(1));
     expect(await page.getByTestId('fit-summary').getByTestId('rms-row').innerText()).toContain(result.gravityOnly.rmsArcsec.toFixed(3));
+    // residuals by observatory: one row per station per fit, as the engine computed them
+    for (const f of [result.gravityOnly, result.nonGrav!]) {
+      for (const st of f.stations!) {
+        const row = page.getByTestId(`station-row-${f.label}-${st.stn}`);
+        expect(await row.innerText()).toContain(st.rmsArcsec!.toFixed(3));
+        expect((await row.getByTestId('station-weights').innerText()).trim()).toMatch(new RegExp(`^${st.weights === 'too-few' ? 'too few to judge' : st.weights}`));
+      }
+    }
     await screenshot(page, 'od-analyst-fit');
 
     // the residual table: sorted by chi-square (largest first) and filtered to the rejected points

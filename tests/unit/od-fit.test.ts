@@ -512,7 +512,9 @@ describe('analyst reweighting of stations (settings.stationWeights)', () => {
       expect(changed).toBeGreaterThan(0);
       // TQZ has no observation in the arc: named in a warning, not an error; TQA (used) is not
       expect(one.warnings.filter((w) => w.includes('TQZ'))).toHaveLength(1);
-      expect(one.warnings.some((w) => w.includes('TQA'))).toBe(false);
+      expect(one.warnings.some((w) => w.includes('TQA') && w.includes('no usable observation'))).toBe(false);
+      // ...but 1.5" for observations made with 0.5" noise is three times too generous, and the station check says so
+      expect(one.warnings.filter((w) => w.includes("station TQA's residuals"))).toEqual([expect.stringMatching(/0\.\d\d times its stated uncertainties .*overstated/)]);
       expect(plain.warnings.some((w) => w.includes('reweighted'))).toBe(false);
     },
     120_000,

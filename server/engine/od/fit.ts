@@ -61,6 +61,7 @@ import {
   type ModelEvaluation,
 } from './leastSquares';
 import { observationChiSquares, outlierPass } from './outliers';
+import { stationStatistics, stationWeightWarnings } from './stationStatistics';
 import { observerStatesAu, UnknownObservatoryError } from './observer';
 import { predictAstrometry } from './predict';
 
@@ -147,6 +148,8 @@ interface Arc {
   obsCovariance: Float64Array;
   sigmaRa: Float64Array;
   sigmaDec: Float64Array;
+  /** The nightly de-weighting factor in sigmaRa/sigmaDec (1 for most observations). */
+  nightlyFactor: Float64Array;
   locked: Uint8Array;
   ephemeris: PlanetEphemeris;
 }
@@ -400,6 +403,8 @@ function runFit(
     unboundSignificance,
     vInfinityKmS,
     encounter: null,
+    // the stated (or analyst-set) sigmas, before the nightly de-weighting, are what the station test judges
+    stations: stationStatistics(residuals.map((res, i) => ({ ...res, sigmaRaArcsec: res.sigmaRaArcsec / arc.nightlyFactor[i], sigmaDecArcsec: res.sigmaDecArcsec / arc.nightlyFactor[i] }))),
   };
   return { result, params, used, plainChi2 };
 }
@@ -674,6 +679,7 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
     obsCovariance,
     sigmaRa,
     sigmaDec,
+    nightlyFactor: nightly,
     locked: Uint8Array.from(observations, (_, i) => (excluded.has(i) ? 1 : 0)),
     ephemeris,
   };
@@ -796,6 +802,9 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
     }
     progress('gravity-only fit on the non-grav set', 1, 1);
   }
+  // stations whose residuals contradict their stated uncertainties, judged on the richer converged model
+  const judged = ng && ng.result.status === 'converged' ? ng.result : grav.result;
+  warnings.push(...stationWeightWarnings(judged.label === 'gravity-only' ? 'gravity-only fit' : 'non-gravitational fit', judged.stations ?? []));
   const comparison = ng ? compareFits(grav.result, ng.result, terms, { gravityOnly: grav.plainChi2, nonGrav: ng.plainChi2 }, sameSet) : null;
   const stations = [...new Set(usable.map((i) => observations[i].stn))].sort();
   return {

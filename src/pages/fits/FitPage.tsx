@@ -14,6 +14,7 @@ import { odAccess } from './access';
 import { AdoptDialog } from './AdoptDialog';
 import { ComparisonView } from './ComparisonView';
 import { FitSummary } from './FitSummary';
+import { StationStatistics } from './StationStatistics';
 import { FitProgress, FitStatusBadge } from './FitStatus';
 import { FIT_LABELS } from './format';
 import { ResidualPlots } from './ResidualPlots';
@@ -117,6 +118,7 @@ export function FitPage() {
             {result.nonGrav && result.comparison && <ComparisonView gravityOnly={result.gravityOnly} nonGrav={result.nonGrav} comparison={result.comparison} />}
             <ResidualPlots result={result} excluded={excluded} fileStem={`tocsin-fit-${fit.id}`} />
             <FitSummary fits={fits} />
+            <StationStatistics fits={fits} />
             <ResidualTable
               fits={fits}
               excluded={excluded}
