@@ -113,10 +113,11 @@ export function useObjectFits(objectId: number, opts: { enabled?: boolean } = {}
   });
 }
 
-export function useFit(id: number) {
+export function useFit(id: number, opts: { enabled?: boolean } = {}) {
   const qc = useQueryClient();
   return useQuery({
     queryKey: odKeys.fit(id),
+    enabled: opts.enabled ?? true,
     queryFn: async () => {
       const fit = await api<FitJob>('GET', `/api/fits/${id}`);
       const before = qc.getQueryData<FitJob>(odKeys.fit(id));

@@ -267,6 +267,10 @@ describe('orbit determination in the browser', () => {
     for (const term of ['A1 (radial)', 'A2 (transverse)']) await page.getByLabel(term).uncheck();
     // reweight one observatory of the arc: a zero sigma is refused at its field (shared/schemas/od.ts message),
     // then 0.5" is sent and shown in the fit's settings line
+    // each observatory's field says what the last finished fit found for it (its residuals by observatory)
+    const demo = (await (await page.request.get(`${server.url}/api/fits/${demoFitId}`)).json()) as { result: { nonGrav: { stations: { stn: string; rmsArcsec: number }[] } } };
+    const hscLast = demo.result.nonGrav.stations.find((st) => st.stn === 'HSC')!;
+    await page.getByText(`fit #${demoFitId}: RMS ${hscLast.rmsArcsec.toFixed(3)}″`).waitFor();
     await page.getByLabel('HSC sigma (″)').fill('0');
     await page.getByRole('button', { name: 'Queue the fit' }).click();
     await page.getByText('Sigma must be greater than 0 arcsec').waitFor();

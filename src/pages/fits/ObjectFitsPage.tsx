@@ -38,7 +38,7 @@ export function ObjectFitsPage() {
           astrometry.isError ? (
             <ErrorState error={astrometry.error} onRetry={() => void astrometry.refetch()} title="The astrometry could not be loaded" />
           ) : (
-            <StartFitForm objectId={id} solutions={solutions.data ?? []} observationCount={usable} />
+            <StartFitForm objectId={id} solutions={solutions.data ?? []} observationCount={usable} lastFitId={lastDoneFitId(fits.data)} />
           )
         )}
         <section aria-labelledby="fit-list-heading">
@@ -78,4 +78,10 @@ export function ObjectFitsPage() {
       </div>
     </div>
   );
+}
+
+/** The newest finished fit with a result (its residuals by observatory guide the reweighting), or null. */
+function lastDoneFitId(fits: readonly { id: number; status: string }[] | undefined): number | null {
+  const done = (fits ?? []).filter((f) => f.status === 'done').map((f) => f.id);
+  return done.length > 0 ? Math.max(...done) : null;
 }

@@ -5,16 +5,16 @@
 // replaced). Checked with the shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
 import { useState, type FormEvent } from 'react';
 import { Link, useNavigate } from 'react-router';
-import { fitSettingsSchema, MAX_STATION_SIGMA_ARCSEC, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm } from '../../../shared/schemas/od';
+import { fitSettingsSchema, MAX_STATION_SIGMA_ARCSEC, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm, type OrbitDeterminationResult } from '../../../shared/schemas/od';
 import type { SolutionSummary } from '../../../shared/schemas/objects';
 import { ApiError, fieldErrors } from '../../api/client';
-import { useAstrometry, useCreateFit } from '../../api/od';
+import { useAstrometry, useCreateFit, useFit } from '../../api/od';
 import { Button, Card, Notice, SelectField, TextField, errorMessage } from '../../components/ui';
 import { stationsOf } from './stationWeights';
 
 const TERM_LABELS: Record<NonGravTerm, string> = { a1: 'A1 (radial)', a2: 'A2 (transverse)', a3: 'A3 (normal)' };
 
-export function StartFitForm({ objectId, solutions, observationCount }: { objectId: number; solutions: SolutionSummary[]; observationCount: number | null }) {
+export function StartFitForm({ objectId, solutions, observationCount, lastFitId = null }: { objectId: number; solutions: SolutionSummary[]; observationCount: number | null; lastFitId?: number | null }) {
   const navigate = useNavigate();
   const create = useCreateFit(objectId);
   const [epoch, setEpoch] = useState('');
@@ -29,6 +29,8 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
   const [stationLocal, setStationLocal] = useState<Record<string, string>>({});
   const astrometry = useAstrometry(objectId);
   const stations = astrometry.data ? stationsOf(astrometry.data.observations) : [];
+  const lastFit = useFit(lastFitId ?? 0, { enabled: lastFitId !== null });
+  const lastStations = lastFitId !== null && lastFit.data?.result ? lastFitStations(lastFit.data.id, lastFit.data.result) : new Map<string, string>();
   const errors = { ...fieldErrors(create.error), ...local };
   const stationErrors = { ...stationServerErrors(create.error, create.variables?.stationWeights), ...stationLocal };
 
@@ -129,7 +131,7 @@ export function StartFitForm({ objectId, solutions, observationCount }: { object
                   value={stationSigma[st.stn] ?? ''}
                   onChange={(e) => setStationSigma((x) => ({ ...x, [st.stn]: e.target.value }))}
                   placeholder="reported"
-                  hint={`${st.count} observation${st.count === 1 ? '' : 's'}`}
+                  hint={`${st.count} observation${st.count === 1 ? '' : 's'}${lastStations.has(st.stn) ? ` · ${lastStations.get(st.stn)}` : ''}`}
                   error={stationErrors[st.stn]}
                 />
               ))}
@@ -156,6 +158,21 @@ function stationServerErrors(error: unknown, sent: readonly { stn: string }[] | 
     const m = typeof i.path === 'string' ? /^stationWeights\.(\d+)/.exec(i.path) : null;
     const stn = m ? sent[Number(m[1])]?.stn : undefined;
     if (stn && typeof i.message === 'string' && !out[stn]) out[stn] = i.message;
+  }
+  return out;
+}
+
+/**
+ * Per station, what the last fit said of it (the non-gravitational fit when it converged, else the gravity-only
+ * one): "fit #3: RMS 0.131″, stated σ overstated" — a starting point for the sigma to type.
+ */
+function lastFitStations(fitId: number, result: OrbitDeterminationResult): Map<string, string> {
+  const judged = result.nonGrav && result.nonGrav.status === 'converged' ? result.nonGrav : result.gravityOnly;
+  const out = new Map<string, string>();
+  for (const s of judged.stations ?? []) {
+    if (s.rmsArcsec === null) continue;
+    const verdict = s.weights === 'understated' || s.weights === 'overstated' ? `, stated σ ${s.weights}` : '';
+    out.set(s.stn, `fit #${fitId}: RMS ${s.rmsArcsec.toFixed(3)}″${verdict}`);
   }
   return out;
 }
