@@ -4,6 +4,8 @@
  * Cases (synthetic arcs from synthesizeAdesPsv, 0.4" noise, two invented test sites, read back with parseAdesPsv):
  *  - 'short'  8 nights x 3 over 28 days (24 observations), gravity-only;
  *  - 'long'   60 nights x 3 over 300 days (180 observations, 2 planted outliers), gravity-only + A1, A2;
+ *  - 'large'  400 nights x 5 over 1000 days (2000 observations, 3 planted outliers; 5 a night, so the nightly
+ *             de-weighting applies), gravity-only + A1, A2 — how the fit scales with the arc;
  *  - 'demo'   the demo arc of HSO-26-U1 (server/db/demo/hso-26-u1.psv) when present, + A1, A2.
  * Per case (OD_BENCH_REPS repetitions, median): wall time of determineOrbit without and with the 20-year encounter
  * search, CPU time of the process over the same call (the machine is shared: CPU time is the load-independent
@@ -44,6 +46,7 @@ type Case = { name: string; observations: OpticalObservation[]; observatories: O
 const cases: Case[] = [
   { name: 'short', observations: synthetic(8, 3, 28, []), observatories: SITES, terms: [] },
   { name: 'long', observations: synthetic(60, 3, 300, [20, 101]), observatories: SITES, terms: ['a1', 'a2'] },
+  { name: 'large', observations: synthetic(400, 5, 1000, [50, 777, 1500]), observatories: SITES, terms: ['a1', 'a2'] },
 ];
 const DEMO_PSV = 'server/db/demo/hso-26-u1.psv';
 const DEMO_OBS = 'server/db/demo/hspdo-observatories.json';
