@@ -119,7 +119,7 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
 
   it('Ceres: swetest state, n-body over 100–300 days, topocentric astrometric RA/Dec versus swetest', () => {
     // Start: swetest heliocentric geometric ICRS state of Ceres (9 decimals: 0.15 km, 1.7 mm/s). Our n-body model has
-    // no asteroid perturbers and a VSOP87-level planet ephemeris, so arcsecond-level drift over months is expected.
+    // no asteroid perturbers and a VSOP87-level planet ephemeris, so some drift over months is expected.
     const jd0 = 2461000.5;
     const out = runSwetest([`-j${jd0.toFixed(9)}`, '-pF', '-j2000', '-true', '-hel', '-fxss', '-icrs', '-speed', '-head', '-g,']);
     const v = out.trim().split(',').map((s) => s.trim()).filter((s) => s.length > 0).map(Number);
@@ -151,7 +151,8 @@ describe('predictAstrometry versus swetest astrometric positions', () => {
       worst = Math.max(worst, e);
     });
     console.log(`Ceres topocentric astrometric vs swetest: ${errs.join(', ')}`);
-    expect(worst).toBeLessThan(5);
+    // measured 0.02″ / 0.03″ / 0.05″ at 100 / 200 / 300 days (2026-12); a 0.2″ bound leaves 4x for the drift
+    expect(worst).toBeLessThan(0.2);
   }, 120_000);
 });
 
