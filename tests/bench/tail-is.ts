@@ -15,12 +15,10 @@
  */
 import os from 'node:os';
 import { designPointProposalAt, gaussian, runImportanceSampling, type MixtureComponent } from '../../server/engine/assess/importanceSampling';
-import { linearAssessment } from '../../server/engine/assess/linear';
 import { lovAssessment } from '../../server/engine/assess/lov';
-import type { OrbitSolution } from '../../server/engine/assess/types';
 import { McPool } from '../../server/engine/jobs/pool';
 import { linearImpactProbability, principalAxes2 } from '../../server/engine/risk';
-import { ENCOUNTER_TDB_DAYS, fixtureEphemeris, syntheticSolution } from '../unit/engine-assess-fixtures';
+import { aimedAlongTrace, assessContext, ENCOUNTER_TDB_DAYS, fixtureEphemeris } from '../unit/engine-assess-fixtures';
 
 const CLONES = Number(process.env.TAIL_IS_CLONES ?? 16384);
 const SEED = Number(process.env.TAIL_IS_SEED ?? 1);
@@ -35,37 +33,9 @@ const median = (xs: number[]) => {
 };
 const e3 = (x: number) => x.toExponential(3);
 
-// The case: the same construction as `aimed(1.2, 1, 3)` in tests/unit/engine-assess-linear.test.ts.
-const ctxOf = (s: OrbitSolution) => ({
-  nominal: { epochTdbDays: s.epochTdbDays, positionAu: s.positionAu, velocityAuD: s.velocityAuD, nonGrav: s.nonGrav },
-  covariance: { names: s.covariance!.parameters, n: s.covariance!.parameters.length, matrix: Float64Array.from(s.covariance!.matrix.flat()) },
-  ephemeris: fixtureEphemeris(),
-  untilTdbDays: UNTIL,
-  bodies: ['earth' as const],
-  maxAu: 0.05,
-});
-const linearOf = (xi: number, zeta: number) => {
-  const { solution } = syntheticSolution({ xiKm: xi, zetaKm: zeta, sigmaAlongTrackAuD: 1.3e-6 });
-  return { solution, lin: linearAssessment(ctxOf(solution))[0] };
-};
-function aimed(alongSigmas: number, crossOfCapture: number, crossSigmas: number) {
-  let tx = 3000, tz = 20000;
-  let r = linearOf(tx, tz);
-  for (let it = 0; it < 3; it++) {
-    const lin = r.lin;
-    const g = lin.bPlaneCovarianceKm2!;
-    const ang = 0.5 * Math.atan2(2 * g[0][1], g[0][0] - g[1][1]);
-    const w = [Math.cos(ang), Math.sin(ang)], n = [-w[1], w[0]];
-    const [mx, mz] = [lin.approach.bPlane!.xiKm, lin.approach.bPlane!.zetaKm];
-    const along = mx * w[0] + mz * w[1], cross = mx * n[0] + mz * n[1];
-    const wantAlong = alongSigmas * lin.ip!.sigmaMajorKm;
-    const wantCross = crossOfCapture * lin.captureRadiusKm! + crossSigmas * lin.ip!.sigmaMinorKm;
-    tx += (wantAlong - along) * w[0] + (wantCross - cross) * n[0];
-    tz += (wantAlong - along) * w[1] + (wantCross - cross) * n[1];
-    r = linearOf(tx, tz);
-  }
-  return r;
-}
+// The case: `aimed(1.2, 1, 3)` of tests/unit/engine-assess-linear.test.ts (engine-assess-fixtures.ts).
+const ctxOf = assessContext;
+const aimed = aimedAlongTrace;
 
 console.log(`Tocsin tail check: linear vs LOV vs importance sampling (Node ${process.version}, ${os.availableParallelism()} cores, load ${os.loadavg().map((x) => x.toFixed(1)).join(' ')})`);
 const { solution, lin } = aimed(1.2, 1, 3);

@@ -11,6 +11,7 @@
 import { AU_KM, DAY_S, KMS_TO_AUD } from '../../server/engine/constants';
 import { ChebyshevEphemeris } from '../../server/engine/ephemeris';
 import { propagate } from '../../server/engine/dynamics';
+import { linearAssessment } from '../../server/engine/assess/linear';
 import type { OrbitSolution } from '../../server/engine/assess/types';
 import type { Vec3 } from '../../server/engine/vec';
 
@@ -87,3 +88,52 @@ export function syntheticSolution(o: SyntheticOptions): { solution: OrbitSolutio
 }
 
 export { DAY_S };
+
+/** End of the assessment window used with these fixtures: 30 days past the encounter. */
+export const FIXTURE_UNTIL_TDB_DAYS = ENCOUNTER_TDB_DAYS + 30;
+
+/** The context linear.ts and lov.ts take, for a fixture solution (Earth only, 0.05 au). */
+export function assessContext(s: OrbitSolution) {
+  return {
+    nominal: { epochTdbDays: s.epochTdbDays, positionAu: s.positionAu, velocityAuD: s.velocityAuD, nonGrav: s.nonGrav },
+    covariance: { names: s.covariance!.parameters, n: s.covariance!.parameters.length, matrix: Float64Array.from(s.covariance!.matrix.flat()) },
+    ephemeris: fixtureEphemeris(),
+    untilTdbDays: FIXTURE_UNTIL_TDB_DAYS,
+    bodies: ['earth' as const],
+    maxAu: 0.05,
+  };
+}
+
+/** A fixture solution aimed at (xi, zeta) and its linear results (one per approach). */
+export function linearAimedAt(xiKm: number, zetaKm: number, sigmaAlongTrackAuD = 0) {
+  const { solution } = syntheticSolution({ xiKm, zetaKm, sigmaAlongTrackAuD });
+  return { solution, results: linearAssessment(assessContext(solution)) };
+}
+
+/**
+ * Elongated uncertainty (along-track velocity sigma 1.3e-6 AU/d), the trace aimed to cross the b-plane
+ * `alongSigmas` major-axis sigmas from the centre, with a cross-trace offset of `crossOfCapture` capture radii plus
+ * `crossSigmas` minor-axis sigmas (three aiming corrections from the linear b-plane point).
+ */
+export function aimedAlongTrace(alongSigmas: number, crossOfCapture: number, crossSigmas = 0) {
+  let tx = 3000, tz = 20000;
+  const at = (x: number, z: number) => {
+    const { solution, results } = linearAimedAt(x, z, 1.3e-6);
+    return { solution, lin: results[0] };
+  };
+  let r = at(tx, tz);
+  for (let it = 0; it < 3; it++) {
+    const lin = r.lin;
+    const g = lin.bPlaneCovarianceKm2!;
+    const ang = 0.5 * Math.atan2(2 * g[0][1], g[0][0] - g[1][1]);
+    const w = [Math.cos(ang), Math.sin(ang)], n = [-w[1], w[0]];
+    const [mx, mz] = [lin.approach.bPlane!.xiKm, lin.approach.bPlane!.zetaKm];
+    const along = mx * w[0] + mz * w[1], across = mx * n[0] + mz * n[1];
+    const wantAlong = alongSigmas * lin.ip!.sigmaMajorKm;
+    const wantCross = crossOfCapture * lin.captureRadiusKm! + crossSigmas * lin.ip!.sigmaMinorKm;
+    tx += (wantAlong - along) * w[0] + (wantCross - across) * n[0];
+    tz += (wantAlong - along) * w[1] + (wantCross - across) * n[1];
+    r = at(tx, tz);
+  }
+  return r;
+}

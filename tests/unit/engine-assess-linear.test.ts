@@ -16,17 +16,10 @@ import { linearAssessment } from '../../server/engine/assess/linear';
 import { lovAssessment } from '../../server/engine/assess/lov';
 import type { AssessOptions, OrbitSolution } from '../../server/engine/assess/types';
 import { normalCdf } from '../../server/engine/risk';
-import { ENCOUNTER_TDB_DAYS, fixtureEphemeris, syntheticSolution } from './engine-assess-fixtures';
+import { aimedAlongTrace, assessContext, ENCOUNTER_TDB_DAYS, fixtureEphemeris, syntheticSolution } from './engine-assess-fixtures';
 
 const UNTIL = ENCOUNTER_TDB_DAYS + 30;
-const ctxOf = (s: OrbitSolution) => ({
-  nominal: { epochTdbDays: s.epochTdbDays, positionAu: s.positionAu, velocityAuD: s.velocityAuD, nonGrav: s.nonGrav },
-  covariance: { names: s.covariance!.parameters, n: s.covariance!.parameters.length, matrix: Float64Array.from(s.covariance!.matrix.flat()) },
-  ephemeris: fixtureEphemeris(),
-  untilTdbDays: UNTIL,
-  bodies: ['earth' as const],
-  maxAu: 0.05,
-});
+const ctxOf = assessContext;
 const linearOf = (xi: number, zeta: number, st = 0) => {
   const { solution } = syntheticSolution({ xiKm: xi, zetaKm: zeta, sigmaAlongTrackAuD: st });
   const res = linearAssessment(ctxOf(solution));
@@ -82,24 +75,7 @@ describe('linear impact probability on synthetic encounters', () => {
 describe('line of variations vs linear on a nearly linear encounter (METHODS.md §6.4)', () => {
   // Elongated uncertainty (along-track velocity), trace aimed to cross the disk at 1.2 sigma along it with a
   // cross-trace offset `crossOfCapture` x b (moderate IP), or just outside the disk (small IP).
-  const aimed = (alongSigmas: number, crossOfCapture: number, crossSigmas = 0) => {
-    let tx = 3000, tz = 20000;
-    let r = linearOf(tx, tz, 1.3e-6);
-    for (let it = 0; it < 3; it++) {
-      const lin = r.lin;
-      const g = lin.bPlaneCovarianceKm2!;
-      const ang = 0.5 * Math.atan2(2 * g[0][1], g[0][0] - g[1][1]);
-      const w = [Math.cos(ang), Math.sin(ang)], n = [-w[1], w[0]];
-      const [mx, mz] = [lin.approach.bPlane!.xiKm, lin.approach.bPlane!.zetaKm];
-      const along = mx * w[0] + mz * w[1], cross = mx * n[0] + mz * n[1];
-      const wantAlong = alongSigmas * lin.ip!.sigmaMajorKm;
-      const wantCross = crossOfCapture * lin.captureRadiusKm! + crossSigmas * lin.ip!.sigmaMinorKm;
-      tx += (wantAlong - along) * w[0] + (wantCross - cross) * n[0];
-      tz += (wantAlong - along) * w[1] + (wantCross - cross) * n[1];
-      r = linearOf(tx, tz, 1.3e-6);
-    }
-    return r;
-  };
+  const aimed = (alongSigmas: number, crossOfCapture: number, crossSigmas = 0) => aimedAlongTrace(alongSigmas, crossOfCapture, crossSigmas);
 
   it('moderate IP: LOV and linear agree within 1%', () => {
     const { solution, lin } = aimed(1.2, 0.4);

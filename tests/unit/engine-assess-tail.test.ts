@@ -24,46 +24,15 @@
  */
 import { describe, expect, it } from 'vitest';
 import { designPointProposalAt, gaussian, runImportanceSampling } from '../../server/engine/assess/importanceSampling';
-import { linearAssessment } from '../../server/engine/assess/linear';
 import { lovAssessment } from '../../server/engine/assess/lov';
-import type { OrbitSolution } from '../../server/engine/assess/types';
-import { ENCOUNTER_TDB_DAYS, fixtureEphemeris, syntheticSolution } from './engine-assess-fixtures';
+import { aimedAlongTrace, assessContext, ENCOUNTER_TDB_DAYS, fixtureEphemeris } from './engine-assess-fixtures';
 
 const UNTIL = ENCOUNTER_TDB_DAYS + 30;
 const CLONES = 8192; // ~4 s in one thread on this machine (bench:tail); relative s.e. ~3.6%
 const SEED = 1;
 
-// Same construction as `aimed(1.2, 1, 3)` in engine-assess-linear.test.ts.
-const ctxOf = (s: OrbitSolution) => ({
-  nominal: { epochTdbDays: s.epochTdbDays, positionAu: s.positionAu, velocityAuD: s.velocityAuD, nonGrav: s.nonGrav },
-  covariance: { names: s.covariance!.parameters, n: s.covariance!.parameters.length, matrix: Float64Array.from(s.covariance!.matrix.flat()) },
-  ephemeris: fixtureEphemeris(),
-  untilTdbDays: UNTIL,
-  bodies: ['earth' as const],
-  maxAu: 0.05,
-});
-const linearOf = (xi: number, zeta: number) => {
-  const { solution } = syntheticSolution({ xiKm: xi, zetaKm: zeta, sigmaAlongTrackAuD: 1.3e-6 });
-  return { solution, lin: linearAssessment(ctxOf(solution))[0] };
-};
-function aimed(alongSigmas: number, crossOfCapture: number, crossSigmas: number) {
-  let tx = 3000, tz = 20000;
-  let r = linearOf(tx, tz);
-  for (let it = 0; it < 3; it++) {
-    const lin = r.lin;
-    const g = lin.bPlaneCovarianceKm2!;
-    const ang = 0.5 * Math.atan2(2 * g[0][1], g[0][0] - g[1][1]);
-    const w = [Math.cos(ang), Math.sin(ang)], n = [-w[1], w[0]];
-    const [mx, mz] = [lin.approach.bPlane!.xiKm, lin.approach.bPlane!.zetaKm];
-    const along = mx * w[0] + mz * w[1], cross = mx * n[0] + mz * n[1];
-    const wantAlong = alongSigmas * lin.ip!.sigmaMajorKm;
-    const wantCross = crossOfCapture * lin.captureRadiusKm! + crossSigmas * lin.ip!.sigmaMinorKm;
-    tx += (wantAlong - along) * w[0] + (wantCross - cross) * n[0];
-    tz += (wantAlong - along) * w[1] + (wantCross - cross) * n[1];
-    r = linearOf(tx, tz);
-  }
-  return r;
-}
+const ctxOf = assessContext;
+const aimed = aimedAlongTrace;
 
 describe('small-IP tail: importance-sampled Monte Carlo vs linear and LOV', () => {
   it('the LOV IP agrees with the importance-sampled IP within 3 s.e.; the linear IP is more than 5x too high', async () => {

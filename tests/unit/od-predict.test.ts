@@ -23,17 +23,12 @@ import { elementsToState } from '../../server/engine/twobody';
 import { tdbDaysFromJd } from '../../server/engine/time';
 import type { NonGravParams, Vec3 } from '../../server/engine/dynamics/types';
 import { jdTtFromTdbDays, runSwetest, swetestSpherical } from '../reference/swetest';
+import { sepArcsec } from '../helpers/angles';
 
 const ARCSEC = Math.PI / (180 * 3600);
 const DEG = Math.PI / 180;
 const wrapPi = (a: number) => Math.atan2(Math.sin(a), Math.cos(a));
 
-/** Angular separation (arcsec) of two RA/Dec pairs in radians. */
-function sepArcsec(ra1: number, dec1: number, ra2: number, dec2: number): number {
-  const c = Math.sin(dec1) * Math.sin(dec2) + Math.cos(dec1) * Math.cos(dec2) * Math.cos(ra1 - ra2);
-  const s = Math.hypot(Math.cos(dec2) * Math.sin(ra1 - ra2), Math.cos(dec1) * Math.sin(dec2) - Math.sin(dec1) * Math.cos(dec2) * Math.cos(ra1 - ra2));
-  return Math.atan2(s, c) / ARCSEC;
-}
 
 const SITES: Observatory[] = [
   { code: 'HSA', name: 'A', longitudeDeg: 10.25, rhoCosPhi: null, rhoSinPhi: null, geodeticLatitudeDeg: 50.1, heightM: 300 },

@@ -27,18 +27,12 @@ import { AU_KM } from '../../server/engine/constants';
 import { tdbDaysFromTtDays, utcFromTdbDays } from '../../server/engine/time';
 import type { Vec3 } from '../../server/engine/vec';
 import { assertSwetestAvailable, jdTtFromTdbDays, swetestSpherical, swetestStates } from '../reference/swetest';
+import { sepArcsec } from '../helpers/angles';
 
-const ARCSEC = Math.PI / (180 * 3600);
 const DEG = Math.PI / 180;
 const J2000_JD = 2451545.0;
 const MM_S_PER_AU_D = (AU_KM * 1e6) / 86400;
 
-/** Angular separation (arcsec) of two RA/Dec pairs in radians. */
-function sepArcsec(ra1: number, dec1: number, ra2: number, dec2: number): number {
-  const c = Math.sin(dec1) * Math.sin(dec2) + Math.cos(dec1) * Math.cos(dec2) * Math.cos(ra1 - ra2);
-  const s = Math.hypot(Math.cos(dec2) * Math.sin(ra1 - ra2), Math.cos(dec1) * Math.sin(dec2) - Math.sin(dec1) * Math.cos(dec2) * Math.cos(ra1 - ra2));
-  return Math.atan2(s, c) / ARCSEC;
-}
 
 /** Three invented observatories (geodetic coordinates), Europe, the southern Andes and the central Pacific. */
 const SITES: Observatory[] = [
