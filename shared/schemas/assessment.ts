@@ -37,6 +37,26 @@ export const linearValiditySchema = z.looseObject({
   valid: z.boolean().nullable(),
   nonlinearity: numOrNull,
   reasons: z.array(z.string()),
+  /**
+   * Near-disk test of the linear map (engine linear.ts; absent in older results or when not run): the test solution
+   * where the linear trace passes closest to the disk centre, its cross-trace error and capture-radius change, the gap
+   * m to the disk edge and its error delta (sigma_minor), and the factor exp(|m delta| + delta^2/2) on the tail IP.
+   */
+  nearDisk: z
+    .looseObject({
+      alongSigmas: num,
+      clamped: z.boolean(),
+      crossTraceErrorKm: num,
+      crossTraceErrorSigmaMinor: num,
+      captureRadiusChangeKm: num,
+      gapSigmaMinor: num,
+      gapErrorSigmaMinor: num,
+      tailFactor: numOrNull,
+      tailFactorLog10: num,
+      negligible: z.boolean(),
+    })
+    .nullable()
+    .optional(),
 });
 
 export const approachSchema = z.looseObject({

@@ -113,6 +113,9 @@ describe('line of variations vs linear on a nearly linear encounter (METHODS.md 
     expect(Math.abs(a.impactProbability.lov / 4.685e-7 - 1)).toBeLessThan(0.1);
     expect(ratio).toBeGreaterThan(2);
     expect((a as unknown as { ratingProbabilitySource: string }).ratingProbabilitySource).toBe('lov');
+    // The linear method now says so on its own (near-disk check, engine-assess-linear-tail.test.ts): not valid here.
+    expect(lin.validity.valid).toBe(false);
+    expect(a.methodFlags.some((f) => /^linear method not valid here: .*near the capture disk/.test(f))).toBe(true);
   });
 });
 

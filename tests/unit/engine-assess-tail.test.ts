@@ -43,8 +43,9 @@ describe('small-IP tail: importance-sampled Monte Carlo vs linear and LOV', () =
     expect(lov.windows).toHaveLength(1);
     const vi = lov.windows[0].virtualImpactors[0];
     const ipLin = lin.ip!.probability, ipLov = vi.impactProbability;
-    // the premise: the linear method's own check calls this encounter linear
-    expect(lin.validity.valid).toBe(true);
+    // the premise: the linear method's +-3-sigma check calls this encounter linear (its near-disk check does not:
+    // engine-assess-linear-tail.test.ts)
+    expect(lin.validity.nonlinearity!).toBeLessThan(0.1);
 
     const atNominal = designPointProposalAt(ctx, new Float64Array(n), 'earth', ENCOUNTER_TDB_DAYS)!;
     const atVi = designPointProposalAt(ctx, lov.dxPerSigma.map((d) => d * vi.sigmaLov), 'earth', ENCOUNTER_TDB_DAYS)!;

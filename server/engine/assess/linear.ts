@@ -22,7 +22,17 @@
  *   along the b-plane major axis (the minimum-norm initial displacement delta x0 = Gamma_0 B_J^T w / sigma_w that
  *   moves the b-plane point by one sigma along w): each is propagated with the full dynamics and its b-plane point
  *   compared with the linear prediction; the map is called linear when both errors are below 10% of the 3-sigma
- *   semi-axis (threshold: Tocsin choice, common practice, no source). An earlier encounter deeper than 0.01 AU
+ *   semi-axis (threshold: Tocsin choice, common practice, no source).
+ *   That check is blind in the tail (tests/unit/engine-assess-tail.test.ts: passes at 0.093% while the linear IP is
+ *   11x too high), so a near-disk test follows: one more solution displaced along the same direction to where the
+ *   linear trace comes closest to the disk centre (clamped to +-3 sigma; skipped within 0.05 sigma of the nominal) is
+ *   propagated; the cross-trace (minor-axis) part of its b-plane error and its capture radius (from its own v_inf)
+ *   minus the nominal's give the error delta of the gap to the disk edge, in sigma_minor. With m the linear gap from
+ *   the trace to the disk edge in sigma_minor (0 when the trace crosses the disk), the tail IP may be off by
+ *   exp(|m delta| + delta^2/2) (the Gaussian tail across a straight edge; common practice, no source); above a
+ *   factor 2 (the tolerance assess.ts uses between linear and LOV) the linear result is not valid, unless the IP
+ *   times that factor is still at most 1e-12 (the floor below which assess.ts ignores a linear/LOV split).
+ *   An earlier encounter deeper than 0.01 AU
  *   (about Earth's Hill radius, METHODS.md §4.4) is also reported: the covariance map "becomes invalid after a deep
  *   encounter" (METHODS.md §6.2).
  */
@@ -147,6 +157,29 @@ export type LinearValidity = {
   /** Largest |b_actual - b_linear| / (3 sigma_major) of the two 3-sigma test solutions, or null. */
   nonlinearity: number | null;
   reasons: string[];
+  /** The near-disk test (absent when not run: no capture radius, or the disk is within 0.05 sigma of the nominal). */
+  nearDisk?: NearDiskCheck;
+};
+
+/** Near-disk test of the linear map (see module comment). Signs: gap errors > 0 mean the linear gap is too small. */
+export type NearDiskCheck = {
+  /** Where the test solution was taken, in major-axis sigmas from the nominal (clamped to +-3). */
+  alongSigmas: number;
+  clamped: boolean;
+  /** Cross-trace (minor-axis) error of the propagated b-plane point vs the linear prediction, > 0 = farther from the centre. */
+  crossTraceErrorKm: number;
+  crossTraceErrorSigmaMinor: number;
+  /** Capture radius of the test solution (from its v_inf) minus the nominal's, km. */
+  captureRadiusChangeKm: number;
+  /** m: linear gap from the trace to the disk edge, sigma_minor (0 when the trace crosses the disk). */
+  gapSigmaMinor: number;
+  /** delta: error of that gap, sigma_minor (cross-trace error minus capture-radius change). */
+  gapErrorSigmaMinor: number;
+  /** exp(|m delta| + delta^2/2), null when it overflows (then see tailFactorLog10). */
+  tailFactor: number | null;
+  tailFactorLog10: number;
+  /** The linear IP times the factor is still <= TAIL_IP_FLOOR: the factor is not held against the linear result. */
+  negligible: boolean;
 };
 
 export type LinearApproachResult = {
@@ -380,15 +413,40 @@ export function linearAssessment(ctx: LinearContext, nominalApproaches?: CloseAp
   return results;
 }
 
-/** The +-3 sigma propagation check of the linear b-plane map (see module comment). */
+/**
+ * Tail factor of the near-disk test (see module comment): in the Gaussian tail, ln IP moves by about m delta + delta^2/2
+ * when the gap from the trace to the disk edge (m sigma_minor) is off by delta sigma_minor (ln Phi(-(m + delta)) -
+ * ln Phi(-m) for the cross-trace tail; common practice, no source). Returns log10 of exp(|m delta| + delta^2/2).
+ */
+export function tailFactorLog10(gapSigmaMinor: number, gapErrorSigmaMinor: number): number {
+  const m = Math.max(0, gapSigmaMinor), d = gapErrorSigmaMinor;
+  return (Math.abs(m * d) + 0.5 * d * d) / Math.LN10;
+}
+
+/** Tolerance on the tail factor: the factor assess.ts tolerates between linear and LOV. */
+export const TAIL_FACTOR_LIMIT = 2;
+/**
+ * IPs that stay at or below this even when multiplied by the tail factor are not flagged: the floor below which
+ * assess.ts ignores a linear/LOV split (Tocsin tolerance, common practice, no source). Far misses (|b| thousands of
+ * sigma_minor) have enormous factors on IPs far below it.
+ */
+export const TAIL_IP_FLOOR = 1e-12;
+
+function formatFactor(log10F: number): string {
+  if (log10F < 3) return (10 ** log10F).toFixed(log10F < 1 ? 2 : 1);
+  return `1e${log10F.toFixed(1)}`;
+}
+
+/** The +-3 sigma propagation check and the near-disk check of the linear b-plane map (see module comment). */
 function checkLinearity(ctx: LinearContext, a: CloseApproach, mean: [number, number], gb: number[][], bj: Float64Array, res: LinearApproachResult): void {
   const { covariance } = ctx;
   const n = covariance.n;
   const G0 = covariance.matrix;
-  // Major axis w of Gamma_B.
+  // Major axis w of Gamma_B, minor axis nm.
   const A = gb[0][0], B = gb[0][1], C = gb[1][1];
   const ang = 0.5 * Math.atan2(2 * B, A - C);
   const w = [Math.cos(ang), Math.sin(ang)];
+  const nm = [-w[1], w[0]];
   const row = new Float64Array(n);
   for (let j = 0; j < n; j++) row[j] = w[0] * bj[j] + w[1] * bj[n + j];
   const sigW = Math.sqrt(quadForm(row, G0, n));
@@ -399,37 +457,98 @@ function checkLinearity(ctx: LinearContext, a: CloseApproach, mean: [number, num
     for (let j = 0; j < n; j++) s += G0[i * n + j] * row[j];
     dx0[i] = s / sigW;
   }
-  let worst = 0;
-  for (const sgn of [-3, 3]) {
-    const p = displace(ctx.nominal, covariance.names, dx0, sgn);
-    const until = Math.min(a.tdbDays + 30, ctx.ephemeris.endTdbDays - 1);
+  const until = Math.min(a.tdbDays + 30, ctx.ephemeris.endTdbDays - 1);
+  /** The encounter of the test solution at `sigmas` major-axis sigmas, or a failure reason. */
+  const encounterAt = (sigmas: number): CloseApproach | string => {
+    const p = displace(ctx.nominal, covariance.names, dx0, sigmas);
     let list: CloseApproach[];
     try {
       list = approachesOf(p, ctx, until, Math.max(ctx.maxAu, 0.2));
     } catch (err) {
-      res.validity.reasons.push(`3-sigma test solution could not be propagated: ${(err as Error).message}`);
-      res.validity.valid = false;
-      return;
+      return `could not be propagated: ${(err as Error).message}`;
     }
     const same = list.filter((e) => e.body === a.body && Math.abs(e.tdbDays - a.tdbDays) < 30 && e.bPlane);
-    if (same.length === 0) {
-      res.validity.reasons.push(`the ${sgn > 0 ? '+' : '-'}3-sigma solution has no encounter with ${a.body} within 30 days of the nominal one`);
-      res.validity.valid = false;
-      res.validity.nonlinearity = Infinity;
+    if (same.length === 0) return `has no encounter with ${a.body} within 30 days of the nominal one`;
+    same.sort((u, v) => Math.abs(u.tdbDays - a.tdbDays) - Math.abs(v.tdbDays - a.tdbDays));
+    return same[0];
+  };
+  const v = res.validity;
+
+  // +-3 sigma test.
+  const at3 = new Map<number, CloseApproach>();
+  let worst = 0;
+  for (const sgn of [-3, 3]) {
+    const e = encounterAt(sgn);
+    if (typeof e === 'string') {
+      v.reasons.push(`the ${sgn > 0 ? '+' : '-'}3-sigma test solution ${e}`);
+      v.valid = false;
+      if (!e.startsWith('could not')) v.nonlinearity = Infinity;
       return;
     }
-    same.sort((u, v) => Math.abs(u.tdbDays - a.tdbDays) - Math.abs(v.tdbDays - a.tdbDays));
-    const bp = same[0].bPlane!;
+    at3.set(sgn, e);
+    const bp = e.bPlane!;
     const predX = mean[0] + sgn * sigW * w[0];
     const predZ = mean[1] + sgn * sigW * w[1];
     worst = Math.max(worst, Math.hypot(bp.xiKm - predX, bp.zetaKm - predZ) / (3 * sigW));
   }
-  res.validity.nonlinearity = worst;
+  v.nonlinearity = worst;
   if (worst > 0.1) {
-    res.validity.valid = false;
-    res.validity.reasons.push(`b-plane map is nonlinear: the 3-sigma test solutions land ${(100 * worst).toFixed(0)}% of the 3-sigma semi-axis away from the linear prediction (limit 10%)`);
+    v.valid = false;
+    v.reasons.push(`b-plane map is nonlinear: the 3-sigma test solutions land ${(100 * worst).toFixed(0)}% of the 3-sigma semi-axis away from the linear prediction (limit 10%)`);
   } else {
-    res.validity.valid = true;
+    v.valid = true;
+  }
+
+  // Near-disk test: the test solution where the linear trace passes closest to the disk centre.
+  const R = res.captureRadiusKm;
+  const sigMinor = Math.sqrt(Math.max(0, nm[0] * nm[0] * A + 2 * nm[0] * nm[1] * B + nm[1] * nm[1] * C));
+  if (R === null || !(sigMinor > 0)) return;
+  const alongKm = mean[0] * w[0] + mean[1] * w[1];
+  const crossKm = mean[0] * nm[0] + mean[1] * nm[1];
+  const closestSigmas = -alongKm / sigW;
+  const t = Math.max(-3, Math.min(3, closestSigmas));
+  if (Math.abs(t) < 0.05) return; // the nominal linearisation is exact enough there
+  const e = Math.abs(t) === 3 ? at3.get(t)! : encounterAt(t);
+  if (typeof e === 'string') {
+    v.reasons.push(`the near-disk test solution (${t.toFixed(2)} sigma along the trace) ${e}`);
+    v.valid = false;
+    return;
+  }
+  const captureTest = captureRadiusFor(a.body, e.vInfinityKmS);
+  if (captureTest === null) return;
+  const predX = mean[0] + t * sigW * w[0];
+  const predZ = mean[1] + t * sigW * w[1];
+  const outward = crossKm < 0 ? -1 : 1; // side of the disk centre the trace passes on
+  // > 0: the propagated trace passes farther from the disk centre than the straight line.
+  const crossErrorKm = outward * ((e.bPlane!.xiKm - predX) * nm[0] + (e.bPlane!.zetaKm - predZ) * nm[1]);
+  const captureChangeKm = captureTest - R;
+  const gapErrorSigmaMinor = (crossErrorKm - captureChangeKm) / sigMinor;
+  const gapSigmaMinor = Math.max(0, Math.abs(crossKm) - R) / sigMinor;
+  if (!Number.isFinite(gapSigmaMinor) || !Number.isFinite(gapErrorSigmaMinor)) return; // degenerate minor axis
+  const log10F = tailFactorLog10(gapSigmaMinor, gapErrorSigmaMinor);
+  const factor = 10 ** log10F;
+  const ip = res.ip ? res.ip.probability : null;
+  const negligible = ip !== null && (ip === 0 || Math.log10(ip) + log10F <= Math.log10(TAIL_IP_FLOOR));
+  v.nearDisk = {
+    alongSigmas: t,
+    clamped: t !== closestSigmas,
+    crossTraceErrorKm: crossErrorKm,
+    crossTraceErrorSigmaMinor: crossErrorKm / sigMinor,
+    captureRadiusChangeKm: captureChangeKm,
+    gapSigmaMinor,
+    gapErrorSigmaMinor,
+    tailFactor: Number.isFinite(factor) ? factor : null,
+    tailFactorLog10: log10F,
+    negligible,
+  };
+  if (log10F > Math.log10(TAIL_FACTOR_LIMIT) && !negligible) {
+    v.valid = false;
+    const dir = gapSigmaMinor > 0 ? (gapErrorSigmaMinor > 0 ? ', too high' : ', too low') : '';
+    v.reasons.push(
+      `near the capture disk the trace is ${Math.abs(crossErrorKm).toFixed(2)} km (${Math.abs(crossErrorKm / sigMinor).toFixed(2)} sigma_minor) ` +
+        `${crossErrorKm >= 0 ? 'farther from' : 'closer to'} the disk centre than the linear prediction and the capture radius differs by ${captureChangeKm.toFixed(2)} km ` +
+        `(test solution ${t.toFixed(2)} sigma along the trace${t !== closestSigmas ? ', clamped' : ''}; gap to the disk edge ${gapSigmaMinor.toFixed(2)} sigma_minor, off by ${gapErrorSigmaMinor.toFixed(2)}); ` +
+        `in this tail the linear IP may be off by a factor ${formatFactor(log10F)}${dir} (limit ${TAIL_FACTOR_LIMIT})`,
+    );
   }
 }
-
