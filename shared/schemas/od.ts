@@ -284,6 +284,11 @@ export const fitComparisonSchema = z.object({
   observationsCompared: z.number().int().optional(),
   /** Whether the gravity-only fit was redone on the non-gravitational fit's observation set for the Δχ². */
   gravityOnlyRefitted: z.boolean().optional(),
+  /**
+   * The gravity-only encounter prediction this comparison uses: the refit's when gravityOnlyRefitted (same data as
+   * the non-gravitational fit), else the gravity-only fit's own; absent in fits stored before the field existed.
+   */
+  gravityOnlyEncounter: encounterUncertaintySchema.nullable().optional(),
   /** P(chi²_k >= deltaChiSquare) for k added parameters (likelihood-ratio test). */
   pValue: finite,
   /** The same p-value as a two-sided Gaussian sigma. */

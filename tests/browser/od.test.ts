@@ -177,6 +177,12 @@ describe('orbit determination in the browser', () => {
     expect((await comparison.getByTestId('delta-chi-square').innerText()).trim()).toBe(result.comparison!.deltaChiSquare.toFixed(1));
     expect(await comparison.getByTestId('delta-chi-square-set').innerText()).toContain(`over the ${result.comparison!.observationsCompared} observations`);
     expect(await comparison.getByTestId('element-sigmas-refit').count()).toBe(result.comparison!.gravityOnlyRefitted ? 1 : 0);
+    // the encounter table's gravity-only column is the comparison's (same-data) prediction
+    const gEnc = result.comparison!.gravityOnlyEncounter ?? result.gravityOnly.encounter;
+    if (gEnc) {
+      const d = gEnc.distanceSigmaKm;
+      expect(await comparison.getByTestId('encounter-comparison').innerText()).toContain(d >= 1000 ? Math.round(d).toLocaleString('en-US') : String(Number(d.toPrecision(4))));
+    }
     const sig = result.comparison!.significanceSigma;
     expect((await comparison.getByTestId('significance').innerText()).trim()).toBe(`${Math.abs(sig) >= 1 ? sig.toFixed(1) : Number(sig.toPrecision(2))} σ`);
     for (const p of result.comparison!.parameterSignificance) expect(await comparison.getByTestId(`significance-${p.term}`).innerText()).toContain(p.signalToNoise.toFixed(1));

@@ -152,6 +152,13 @@ describe('compareFits (METHODS §9.2: Δχ², likelihood-ratio p-value, A_k/σ, 
     expect(withRefit.observationsCompared).toBe(40);
     expect(withRefit.gravityOnlyRefitted).toBe(true);
     expect(withRefit.verdict).toContain('over the 40 observations the non-gravitational fit uses (gravity-only refitted to them)');
+    // the refit's encounter prediction (same data) is the one compared, not the original gravity-only fit's
+    const enc = (sigmaKm: number) => ({ body: 'earth', closeApproachTdbDays: 12000, closeApproachUtc: '2032-11-08T12:00:00.000Z', distanceKm: 5e6, distanceSigmaKm: sigmaKm, positionSigmaMaxKm: 3 * sigmaKm, timeSigmaMin: 2 });
+    const refitResult = { ...g, encounter: enc(100) };
+    const withEnc = compareFits({ ...g, residuals, encounter: enc(300) }, { ...ng, encounter: enc(2400) }, ['a2'], plain, { plainChi2: new Float64Array(40).fill(3), used: new Uint8Array(40).fill(1), result: refitResult });
+    expect(withEnc.gravityOnlyEncounter!.distanceSigmaKm).toBe(100);
+    expect(withEnc.verdict).toMatch(/distance 1-sigma 100 km gravity-only, 2400 km with A2/);
+    expect(compareFits({ ...g, encounter: enc(300) }, { ...ng, encounter: enc(2400) }, ['a2'], plain).gravityOnlyEncounter!.distanceSigmaKm).toBe(300);
   });
 
   it('a small Δχ² keeps the gravity-only fit', () => {

@@ -122,8 +122,8 @@ const fmt = (x: number) => {
  * Compare a gravity-only and a non-gravitational fit of the same observations. plainChi2 holds, for each fit,
  * ξ_iᵀ W_i ξ_i of every observation (same order as the residuals). sameSet, when given, is a gravity-only fit
  * redone on the non-gravitational fit's used set: its ξᵀWξ per observation and its used flags replace the
- * gravity-only fit's for the Δχ², and its element sigmas (when its result is given) for the sigma ratios; the
- * residual trend and the encounter still describe the gravity-only fit as it was run.
+ * gravity-only fit's for the Δχ², and its element sigmas and encounter prediction (when its result is given) for
+ * the ratios; the residual trend still describes the gravity-only fit as it was run.
  */
 export function compareFits(
   gravity: FitResult,
@@ -199,7 +199,7 @@ export function compareFits(
       `The gravity-only fit is adequate: adding ${termsText} lowers chi-square by only ${fmt(delta)} (${fmt(significanceSigma)} sigma) ${setText}, and no A_k reaches 3 times its uncertainty; ` +
       `the non-gravitational fit would only widen the uncertainties${widen !== null ? ` (up to ${fmt(widen)} times)` : ''}.`;
   }
-  const eg = gravity.encounter;
+  const eg = sameSet?.result ? sameSet.result.encounter : gravity.encounter;
   const en = nonGrav.encounter;
   if (eg && en && Math.abs(eg.closeApproachTdbDays - en.closeApproachTdbDays) < 30) {
     verdict +=
@@ -211,6 +211,7 @@ export function compareFits(
     deltaChiSquare: delta,
     observationsCompared: common,
     gravityOnlyRefitted: Boolean(sameSet),
+    gravityOnlyEncounter: eg,
     pValue,
     significanceSigma,
     parameterSignificance,

@@ -794,7 +794,24 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
     const refitWarnings: string[] = [];
     try {
       const refit = runFit(arc, epochTdbDays, 'gravity-only', [], { ...settings, rejectOutliers: false }, Float64Array.from(grav.params.subarray(0, 6)), ng.used, progress, checkAbort, refitWarnings);
-      if (refit.result.status === 'converged') sameSet = { plainChi2: refit.plainChi2, used: refit.used, result: refit.result };
+      if (refit.result.status === 'converged') {
+        sameSet = { plainChi2: refit.plainChi2, used: refit.used, result: refit.result };
+        if (!hooks.skipEncounter && refit.result.covariance) {
+          try {
+            refit.result.encounter = encounterUncertainty({
+              epochTdbDays,
+              positionAu: refit.result.positionAu,
+              velocityAuD: refit.result.velocityAuD,
+              nonGrav: null,
+              parameters: refit.result.parameters,
+              covariance: refit.result.covariance,
+              arcEndTdbDays: last.obsTimeTdbDays,
+            });
+          } catch (err) {
+            warnings.push(`gravity-only fit on the non-gravitational fit's observations: encounter uncertainty not computed (${(err as Error).message})`);
+          }
+        }
+      }
       else warnings.push(`the gravity-only fit on the non-gravitational fit's observations ${refit.result.status}; Δχ² is taken over the observations both fits use`);
     } catch (err) {
       if (err instanceof FitAbortedError) throw err;

@@ -24,7 +24,8 @@ function Stat({ label, value, testId }: { label: string; value: string; testId?:
 }
 
 export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOnly: FitResult; nonGrav: FitResult; comparison: FitComparison }) {
-  const g = gravityOnly.encounter, n = nonGrav.encounter;
+  // the same-data gravity-only prediction when the comparison has one (refit on the non-grav fit's observations)
+  const g = comparison.gravityOnlyEncounter !== undefined ? comparison.gravityOnlyEncounter : gravityOnly.encounter, n = nonGrav.encounter;
   const k = comparison.addedParameters.length;
   return (
     <Card aria-labelledby="comparison-heading" data-testid="comparison">
@@ -165,7 +166,9 @@ export function ComparisonView({ gravityOnly, nonGrav, comparison }: { gravityOn
               </tbody>
             </table>
           )}
-          <p className="mt-2 text-xs text-ink-soft">Linear propagation of each fit's covariance. {CAUTION_TEXT}</p>
+          <p className="mt-2 text-xs text-ink-soft">
+            Linear propagation of each fit's covariance{comparison.gravityOnlyRefitted && comparison.gravityOnlyEncounter !== undefined ? ' (gravity only: the fit redone on the non-gravitational fit\'s observations)' : ''}. {CAUTION_TEXT}
+          </p>
         </section>
       </div>
     </Card>
