@@ -417,7 +417,7 @@ export async function assess(solution: OrbitSolution, opts: AssessOptions, hooks
       : null,
     otherWindows,
     methodNotes: {
-      linear: 'STM from the variational equations; b-plane Gaussian integrated over the capture disk (METHODS 6.2-6.3); validity by a +-3-sigma propagation check',
+      linear: 'STM from the variational equations; b-plane Gaussian integrated over the capture disk (METHODS 6.2-6.3); validity by a +-3-sigma propagation check and a near-disk check (tail factor exp(|m delta| + delta^2/2) <= 2)',
       monteCarlo: mc ? 'plain Monte Carlo with a seeded per-clone generator; Wilson 95% interval; zero hits give an upper bound' : null,
       lov: lov ? lov.method : null,
       lovNotes: lov ? lov.notes : null,
