@@ -274,9 +274,19 @@ describe('orbit determination in the browser', () => {
     // reweight one observatory of the arc: a zero sigma is refused at its field (shared/schemas/od.ts message),
     // then 0.5" is sent and shown in the fit's settings line
     // each observatory's field says what the last finished fit found for it (its residuals by observatory)
-    const demo = (await (await page.request.get(`${server.url}/api/fits/${demoFitId}`)).json()) as { result: { nonGrav: { stations: { stn: string; rmsArcsec: number }[] } } };
+    const demo = (await (await page.request.get(`${server.url}/api/fits/${demoFitId}`)).json()) as { result: { nonGrav: { stations: { stn: string; rmsArcsec: number; weights: string }[] } } };
     const hscLast = demo.result.nonGrav.stations.find((st) => st.stn === 'HSC')!;
     await page.getByText(`fit #${demoFitId}: RMS ${hscLast.rmsArcsec.toFixed(3)}″`).waitFor();
+    // stations whose stated sigmas the last fit contradicted: one click fills their RMS in (then cleared again here)
+    const flagged = (demo.result.nonGrav.stations as { stn: string; rmsArcsec: number; weights?: string }[]).filter((st) => st.weights === 'understated' || st.weights === 'overstated');
+    expect(flagged.map((f) => f.stn)).toEqual(['HSB']); // the demo arc's HSB: residuals 0.65 of its stated sigma (DEVELOPERS.md)
+    {
+      await page.getByRole('button', { name: `Use fit #${demoFitId}'s RMS for ${flagged.map((f) => f.stn).join(', ')}` }).click();
+      for (const f of flagged) {
+        expect(await page.getByLabel(`${f.stn} sigma (″)`).inputValue()).toBe(f.rmsArcsec.toFixed(2));
+        await page.getByLabel(`${f.stn} sigma (″)`).fill('');
+      }
+    }
     await page.getByLabel('HSC sigma (″)').fill('0');
     await page.getByRole('button', { name: 'Queue the fit' }).click();
     await page.getByText('Sigma must be greater than 0 arcsec').waitFor();

@@ -30,7 +30,10 @@ export function StartFitForm({ objectId, solutions, observationCount, lastFitId 
   const astrometry = useAstrometry(objectId);
   const stations = astrometry.data ? stationsOf(astrometry.data.observations) : [];
   const lastFit = useFit(lastFitId ?? 0, { enabled: lastFitId !== null });
-  const lastStations = lastFitId !== null && lastFit.data?.result ? lastFitStations(lastFit.data.id, lastFit.data.result) : new Map<string, string>();
+  const last = lastFitId !== null && lastFit.data?.result ? lastFitStations(lastFit.data.id, lastFit.data.result) : { hints: new Map<string, string>(), flagged: [] };
+  const lastStations = last.hints;
+  // flagged stations that are among this form's stations (their RMS offered as the new sigma)
+  const offer = last.flagged.filter((f) => stations.some((st) => st.stn === f.stn) && f.rmsArcsec > 0 && f.rmsArcsec <= MAX_STATION_SIGMA_ARCSEC);
   const errors = { ...fieldErrors(create.error), ...local };
   const stationErrors = { ...stationServerErrors(create.error, create.variables?.stationWeights), ...stationLocal };
 
@@ -137,6 +140,16 @@ export function StartFitForm({ objectId, solutions, observationCount, lastFitId 
               ))}
             </div>
           )}
+          {offer.length > 0 && (
+            <Button
+              type="button"
+              variant="secondary"
+              className="mt-3"
+              onClick={() => setStationSigma((x) => ({ ...x, ...Object.fromEntries(offer.map((f) => [f.stn, f.rmsArcsec.toFixed(2)])) }))}
+            >
+              Use fit #{lastFitId}'s RMS for {offer.map((f) => f.stn).join(', ')}
+            </Button>
+          )}
           {errors.stationWeights && Object.keys(stationErrors).length === 0 && <p className="mt-1 text-sm font-medium text-danger-700">{errors.stationWeights}</p>}
         </fieldset>
         <div className="sm:col-span-2">
@@ -166,13 +179,15 @@ function stationServerErrors(error: unknown, sent: readonly { stn: string }[] | 
  * Per station, what the last fit said of it (the non-gravitational fit when it converged, else the gravity-only
  * one): "fit #3: RMS 0.131″, stated σ overstated" — a starting point for the sigma to type.
  */
-function lastFitStations(fitId: number, result: OrbitDeterminationResult): Map<string, string> {
+function lastFitStations(fitId: number, result: OrbitDeterminationResult): { hints: Map<string, string>; flagged: { stn: string; rmsArcsec: number }[] } {
   const judged = result.nonGrav && result.nonGrav.status === 'converged' ? result.nonGrav : result.gravityOnly;
-  const out = new Map<string, string>();
+  const hints = new Map<string, string>();
+  const flagged: { stn: string; rmsArcsec: number }[] = [];
   for (const s of judged.stations ?? []) {
     if (s.rmsArcsec === null) continue;
-    const verdict = s.weights === 'understated' || s.weights === 'overstated' ? `, stated σ ${s.weights}` : '';
-    out.set(s.stn, `fit #${fitId}: RMS ${s.rmsArcsec.toFixed(3)}″${verdict}`);
+    const isFlagged = s.weights === 'understated' || s.weights === 'overstated';
+    hints.set(s.stn, `fit #${fitId}: RMS ${s.rmsArcsec.toFixed(3)}″${isFlagged ? `, stated σ ${s.weights}` : ''}`);
+    if (isFlagged) flagged.push({ stn: s.stn, rmsArcsec: s.rmsArcsec });
   }
-  return out;
+  return { hints, flagged };
 }
