@@ -14,6 +14,7 @@ import {
   EARTH_ROTATION_RATE_RAD_PER_DAY,
   earthOrientationAt,
   earthRotationAngleRad,
+  equationOfEquinoxesRad,
   gastRad,
   gmstRad,
   nutationMatrix,
@@ -212,6 +213,100 @@ describe('site vector in the GCRS versus swetest topocentric minus geocentric Mo
       expect(dUt1S).toBeLessThan(1.5); // swetest's ΔT model versus TT − UTC (within a second while leap seconds continue)
       expect(dKm).toBeLessThan((EARTH_ROTATION_RATE_RAD_PER_DAY / DAY_S) * dUt1S * rhoKm * 1.001 + 0.001);
     }
+  }, 60_000);
+});
+
+describe('UT1 − UTC option (observer.ts ut1MinusUtcSeconds)', () => {
+  const sites = [obs('U1', 10.25, 50.1, 300), obs('U2', 289.27, -30.17, 2200), obs('U3', 0, 0, 0)];
+  const epochs = [2100.3125, 7742.15625, 9556.2];
+  // IERS Conventions 2010 eq. 5.15: dERA/dUT1 = 2π · 1.00273781191135448 per day (written out here, not imported).
+  const omegaRadPerS = (2 * Math.PI * 1.00273781191135448) / 86400;
+  const km = (p: readonly number[]) => p.map((x) => x * AU_KM);
+  const transposeTimes = (m: number[][], v: number[]) => [0, 1, 2].map((j) => m[0][j] * v[0] + m[1][j] * v[1] + m[2][j] * v[2]);
+
+  it('0 (and no option) gives bit-identical observer states to the UT1 = UTC building blocks', () => {
+    const t0 = tdbDaysFromUtc(2026, 3, 1, 3, 0, 0);
+    const eph = ChebyshevEphemeris.build(t0 - 2, t0 + 2);
+    const items = sites.map((site, k) => ({ stn: site.code, obsTimeTdbDays: t0 + 0.13 * k }));
+    const none = observerStatesAu(items, sites, eph);
+    const zero = observerStatesAu(items, sites, eph, { ut1MinusUtcSeconds: 0 });
+    expect(zero).toEqual(none);
+    // The same arithmetic as before the option existed: geocentre + siteGcrsKm(r_ITRS, earthOrientationAt(t)) / AU.
+    const e = new Float64Array(6);
+    items.forEach((it, k) => {
+      eph.stateInto(EARTH_INDEX, it.obsTimeTdbDays, e);
+      const { positionKm, velocityKmS } = siteGcrsKm(siteVectorItrsKm(sites[k]), earthOrientationAt(it.obsTimeTdbDays));
+      for (let c = 0; c < 3; c++) {
+        expect(Object.is(none[k].positionAu[c], e[c] + positionKm[c] / AU_KM)).toBe(true);
+        expect(Object.is(none[k].velocityAuD[c], e[3 + c] + (velocityKmS[c] * DAY_S) / AU_KM)).toBe(true);
+      }
+    });
+    // A non-zero value really changes the result (so the equalities above are not vacuous).
+    const moved = observerStatesAu(items, sites, eph, { ut1MinusUtcSeconds: 0.35 });
+    expect(Math.hypot(...km(moved[0].positionAu.map((x, c) => x - none[0].positionAu[c])))).toBeGreaterThan(0.05);
+  });
+
+  it('d seconds rotate the site about the pole of date by 2π·1.00273781191135448·d/86400 (IERS 2010 eq. 5.15): |Δr| = ω·d·ρcosφ′·a to 1 cm', () => {
+    for (const tdb of epochs) {
+      const pn = earthOrientationAt(tdb).precessionNutation;
+      for (const site of sites) {
+        const rhoCosPhiKm = Math.hypot(siteVectorItrsKm(site)[0], siteVectorItrsKm(site)[1]); // ρcosφ′·a
+        const base = km(siteGeocentricAu(site, tdb).positionAu);
+        for (const d of [0.35, -0.6, 0.9]) {
+          const p = km(siteGeocentricAu(site, tdb, { ut1MinusUtcSeconds: d }).positionAu);
+          // Size: the chord 2·ρcosφ′a·sin(ωd/2) equals the arc ω·d·ρcosφ′·a to 1e-9 relative (computed), so 1 cm is the
+          // test's tolerance, not the approximation's.
+          expect(Math.abs(Math.hypot(p[0] - base[0], p[1] - base[1], p[2] - base[2]) - omegaRadPerS * Math.abs(d) * rhoCosPhiKm)).toBeLessThan(1e-5);
+          // Direction: in the true equator of date (PNᵀ r) the height above the equator is unchanged and the hour angle
+          // advances by ω·d (east for d > 0).
+          const a = transposeTimes(pn, base), b = transposeTimes(pn, p);
+          expect(Math.abs(b[2] - a[2])).toBeLessThan(1e-6);
+          expect(Math.abs(wrap(Math.atan2(b[1], b[0]) - Math.atan2(a[1], a[0])) - omegaRadPerS * d)).toBeLessThan(1e-11);
+        }
+      }
+    }
+    // refused outside ±0.9 s or not finite
+    expect(() => siteGeocentricAu(sites[0], epochs[0], { ut1MinusUtcSeconds: 1.2 })).toThrow(/ut1MinusUtcSeconds/);
+    expect(() => observerStatesAu([{ stn: 'U1', obsTimeTdbDays: epochs[0] }], sites, undefined, { ut1MinusUtcSeconds: Number.NaN })).toThrow(/ut1MinusUtcSeconds/);
+  });
+
+  it('with d = swetest\'s own UT1 − UTC (from its ΔT) the site matches swetest\'s site vector better than with d = 0', () => {
+    // swetest's site (topocentric minus geocentric Moon, -j2000, nutation-free: see above) against ours with the
+    // nutation taken out again: r_noNut = PᵀNᵀ · N · R3(EE) · (PᵀNᵀ)ᵀ · r_ours, since r_ours = PᵀNᵀ R3(−GMST − EE) r_ITRS.
+    const site = obs('U4', 289.27, -30.17, 2200);
+    const topo = { eastLongitudeDeg: site.longitudeDeg, latitudeDeg: site.geodeticLatitudeDeg!, elevationM: site.heightM! };
+    const mv = (m: number[][], v: number[]) => [0, 1, 2].map((i) => m[i][0] * v[0] + m[i][1] * v[1] + m[i][2] * v[2]);
+    let used = 0;
+    const rows: string[] = [];
+    for (const tdb of [2100.3125, 3300.7, 5456.8, 7742.15625, 8800.4]) {
+      const jdTt = jdTtFromTdbDays(tdb);
+      const geoKm = vectorKmFromSpherical(swetestSpherical({ body: 'moon', jdTt, place: 'geometric' }));
+      const t = swetestSpherical({ body: 'moon', jdTt, place: 'geometric', topo });
+      const topoKm = vectorKmFromSpherical(t);
+      const sweSite = [geoKm[0] - topoKm[0], geoKm[1] - topoKm[1], geoKm[2] - topoKm[2]];
+      const ttDays = ttDaysFromTdbDays(tdb);
+      const dSwe = (ttDays - t.deltaTSeconds / DAY_S - ut1DaysFromTdbDays(tdb)) * DAY_S; // swetest's UT1 − our UTC, s
+      if (Math.abs(dSwe) > 0.9 || Math.abs(dSwe) < 0.05) continue; // outside the setting's range, or too small to tell
+      used++;
+      const eo = earthOrientationAt(tdb);
+      const ee = equationOfEquinoxesRad(ttDays);
+      const r3 = [[Math.cos(ee), Math.sin(ee), 0], [-Math.sin(ee), Math.cos(ee), 0], [0, 0, 1]];
+      const noNut = (r: number[]) => mv(eo.precessionNutation, mv(nutationMatrix(ttDays), mv(r3, transposeTimes(eo.precessionNutation, r))));
+      const miss = (d: number) => {
+        const p = noNut(km(siteGeocentricAu(site, tdb, { ut1MinusUtcSeconds: d }).positionAu));
+        return Math.hypot(p[0] - sweSite[0], p[1] - sweSite[1], p[2] - sweSite[2]);
+      };
+      const withD = miss(dSwe), withZero = miss(0);
+      const expectedZeroKm = omegaRadPerS * Math.abs(dSwe) * Math.hypot(siteVectorItrsKm(site)[0], siteVectorItrsKm(site)[1]);
+      rows.push(`${tdb}: UT1−UTC(swetest) ${dSwe.toFixed(3)} s, miss ${(withD * 1000).toFixed(1)} m vs ${(withZero * 1000).toFixed(1)} m with 0`);
+      // Like for like swetest agrees to ~1 m (measured in the test above); tolerance 10 m.
+      expect(withD).toBeLessThan(0.01);
+      expect(withZero).toBeGreaterThan(withD);
+      // with 0 the miss is the rotation of the site by ω·dSwe (10 m slack as above)
+      expect(Math.abs(withZero - expectedZeroKm)).toBeLessThan(0.01);
+    }
+    console.log(`UT1 − UTC option vs swetest: ${rows.join('; ')}`);
+    expect(used).toBeGreaterThanOrEqual(2);
   }, 60_000);
 });
 
