@@ -20,7 +20,7 @@
  *   assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance]
  *       -> the Engine II risk assessment of issue 4 item 8 (server/engine/assess/assess.ts)
  *   fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N]
- *       [--station-sigma STN=ARCSEC[,STN=ARCSEC...]] [--progress]
+ *       [--station-sigma STN=ARCSEC[,STN=ARCSEC...]] [--ut1-utc SECONDS] [--progress]
  *       -> {"object","chosen","solution","fit","gravityOnly","comparison","preliminary","arc","warnings","caution"}
  *          orbit determination from IAU ADES PSV astrometry (server/engine/od/fit.ts, METHODS §9): "fit" is the chosen
  *          fit (the non-gravitational one with --nongrav, else gravity-only: state, covariance, RMS, chi-square,
@@ -30,6 +30,9 @@
  *          --station-sigma reweights whole stations: every observation of STN uses ARCSEC (0 < ARCSEC <= 60) for
  *          RA·cos(dec) and Dec instead of its reported uncertainties (correlation dropped; the nightly de-weighting still
  *          applies); a named station without observations gives a warning. A malformed list is a usage error (exit 2).
+ *          --ut1-utc SECONDS is UT1 − UTC for the observer positions' Earth rotation angle, one value for the arc, in
+ *          [-0.9, 0.9] (default 0 = UT1 taken as UTC; a negative value as --ut1-utc=-0.3); outside that range or not a
+ *          number is a usage error (exit 2).
  *          Malformed ADES lines and observatory files are INVALID_INPUT with one issue per line/field.
  *   help -> {"commands": {...}, "epochForms": [...]}
  *
@@ -78,7 +81,7 @@ const USAGE: Record<string, string> = {
   approaches: 'approaches FILE --until EPOCH [--max-au 0.05] [--body earth[,moon,venus,mars]]',
   classify: 'classify FILE',
   assess: 'assess FILE --until EPOCH [--clones N] [--seed S] [--method linear|mc|lov|all] [--analysis-date EPOCH] [--repair-covariance] [--max-au 0.05] [--body earth[,...]] [--progress]',
-  fit: 'fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--station-sigma HSA=0.5,HSB=0.8] [--progress]',
+  fit: 'fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH] [--no-outliers] [--max-iterations N] [--station-sigma HSA=0.5,HSB=0.8] [--ut1-utc SECONDS] [--progress]',
   help: 'help',
 };
 
@@ -377,13 +380,13 @@ export function stationSigmaArg(text: string): { stn: string; sigmaArcsec: numbe
 
 /**
  * fit FILE.psv --observatories FILE.json [--nongrav A1,A2[,A3]] [--law water-ice|inverse-square] [--epoch EPOCH]
- *   [--no-outliers] [--max-iterations N] [--station-sigma STN=ARCSEC,...] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
+ *   [--no-outliers] [--max-iterations N] [--station-sigma STN=ARCSEC,...] [--ut1-utc SECONDS] [--progress]: orbit determination from optical astrometry (issue 8 item 7; server/engine/od/fit.ts).
  */
 async function cmdFit(argv: string[]): Promise<unknown> {
   const { values, positionals } = parse(argv, {
     observatories: { type: 'string' }, nongrav: { type: 'string' }, epoch: { type: 'string' },
     'no-outliers': { type: 'boolean' }, 'max-iterations': { type: 'string' }, progress: { type: 'boolean' },
-    law: { type: 'string' }, 'station-sigma': { type: 'string' },
+    law: { type: 'string' }, 'station-sigma': { type: 'string' }, 'ut1-utc': { type: 'string' },
   });
   const file = positional(positionals, 'FILE.psv (IAU ADES PSV astrometry)');
   if (values.observatories === undefined) throw usageError('missing --observatories FILE.json');
@@ -410,6 +413,14 @@ async function cmdFit(argv: string[]): Promise<unknown> {
     }
   }
   const stationWeights = values['station-sigma'] === undefined ? [] : stationSigmaArg(values['station-sigma']);
+  let ut1MinusUtcSeconds = 0;
+  if (values['ut1-utc'] !== undefined) {
+    // Same range as the settings schema: leap seconds keep UTC within 0.9 s of UT1.
+    ut1MinusUtcSeconds = values['ut1-utc'].trim() === '' ? NaN : Number(values['ut1-utc']);
+    if (!Number.isFinite(ut1MinusUtcSeconds) || Math.abs(ut1MinusUtcSeconds) > 0.9) {
+      throw usageError(`--ut1-utc must be a number of seconds in [-0.9, 0.9] (UT1 − UTC from the IERS bulletins), got ${JSON.stringify(values['ut1-utc'])}`);
+    }
+  }
   const psv = readText(file);
   const obsText = readText(values.observatories);
   const od = await needModule('orbit determination (server/engine/od)', () => import('./od'));
@@ -442,7 +453,7 @@ async function cmdFit(argv: string[]): Promise<unknown> {
   if (ids.length > 1) {
     throw new CliError('INVALID_INPUT', `${file}: observations of ${ids.length} objects (${ids.slice(0, 5).join(', ')}); give one object per file`);
   }
-  const settings = fitSettingsSchema.parse({ epoch, nonGravTerms: terms, nonGravLaw: law, rejectOutliers: !values['no-outliers'], maxIterations, stationWeights });
+  const settings = fitSettingsSchema.parse({ epoch, nonGravTerms: terms, nonGravLaw: law, rejectOutliers: !values['no-outliers'], maxIterations, stationWeights, ut1MinusUtcSeconds });
   const onProgress = values.progress ? (p: { stage: string; done: number; total: number }) => process.stderr.write(`${JSON.stringify({ progress: p })}\n`) : undefined;
   let result;
   try {

@@ -124,6 +124,9 @@ export const stationWeightSchema = z.strictObject({
 });
 export type StationWeight = z.infer<typeof stationWeightSchema>;
 
+/** Largest |UT1 − UTC| in seconds: leap seconds keep UTC within 0.9 s of UT1 (IERS; common practice, no source). */
+export const MAX_UT1_MINUS_UTC_SECONDS = 0.9;
+
 export const fitSettingsSchema = z.strictObject({
   /** Solution epoch; default: the middle of the arc rounded to 0h TDB. */
   epoch: epochTextSchema.nullable().default(null),
@@ -157,6 +160,16 @@ export const fitSettingsSchema = z.strictObject({
       });
     })
     .default([]),
+  /**
+   * UT1 − UTC (seconds) for the Earth rotation angle of the observer positions (METHODS.md §9.4), one value for the
+   * whole arc (the analyst reads it from the IERS bulletins for the arc's dates). 0 means UT1 taken as UTC (stored
+   * fits without the field parse to 0). Leap seconds keep UTC within 0.9 s of UT1 (IERS; common practice).
+   */
+  ut1MinusUtcSeconds: z
+    .number({ error: 'UT1 − UTC: enter a number of seconds' })
+    .refine(Number.isFinite, 'UT1 − UTC must be a finite number of seconds')
+    .refine((v) => v >= -MAX_UT1_MINUS_UTC_SECONDS && v <= MAX_UT1_MINUS_UTC_SECONDS, `UT1 − UTC must be between −${MAX_UT1_MINUS_UTC_SECONDS} and ${MAX_UT1_MINUS_UTC_SECONDS} s (leap seconds keep UTC within ${MAX_UT1_MINUS_UTC_SECONDS} s of UT1)`)
+    .default(0),
 });
 export type FitSettings = z.output<typeof fitSettingsSchema>;
 export type FitSettingsInput = z.input<typeof fitSettingsSchema>;

@@ -647,7 +647,10 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
   const ephemeris = defaultEphemeris(tMin - 2, tMax + 2);
   let states;
   try {
-    states = observerStatesAu(observations.map((o) => ({ stn: o.stn, obsTimeTdbDays: o.obsTimeTdbDays })), observatories, ephemeris);
+    // Stored fits from before the field existed carry no ut1MinusUtcSeconds: UT1 taken as UTC.
+    states = observerStatesAu(observations.map((o) => ({ stn: o.stn, obsTimeTdbDays: o.obsTimeTdbDays })), observatories, ephemeris, {
+      ut1MinusUtcSeconds: settings.ut1MinusUtcSeconds ?? 0,
+    });
   } catch (err) {
     if (err instanceof UnknownObservatoryError) {
       throw new OrbitDeterminationError('UNKNOWN_OBSERVATORY', `unknown observatory code${err.codes.length > 1 ? 's' : ''} ${err.codes.join(', ')} (not in the observatory table)`, { codes: err.codes });

@@ -1,7 +1,7 @@
 /**
  * Synthetic optical astrometry in IAU ADES PSV form from a known orbit (tests and the demo scenario):
  * the astrometric RA/Dec predicted by predict.ts (n-body model with the orbit's non-grav terms, observer positions
- * from observer.ts, light time, no aberration; METHODS.md §9.4), plus seeded Gaussian noise of `noiseArcsec` in
+ * from observer.ts with an optional UT1 − UTC, light time, no aberration; METHODS.md §9.4), plus seeded Gaussian noise of `noiseArcsec` in
  * RA·cos(dec) and in Dec (xoshiro256** + Box–Muller, risk/random.ts), plus optional planted outliers.
  *
  * The file is written so that parseAdesPsv reads it back without issues: "# version=2022", header groups, the
@@ -32,6 +32,8 @@ export type SyntheticArcOptions = {
   outliers?: readonly { index: number; offsetArcsec: number }[];
   /** ADES astCat written on every line (default "Gaia3"). */
   astCat?: string;
+  /** UT1 − UTC (s) of the observer positions (observer.ts; default 0 = UT1 taken as UTC), one value for the arc. */
+  ut1MinusUtcSeconds?: number;
 };
 
 export type SyntheticArc = {
@@ -74,7 +76,9 @@ export function synthesizeAdesPsv(opts: SyntheticArcOptions): SyntheticArc {
   const lo = times.reduce((a, t) => Math.min(a, t), opts.orbit.epochTdbDays);
   const hi = times.reduce((a, t) => Math.max(a, t), opts.orbit.epochTdbDays);
   const eph = defaultEphemeris(lo - 0.1, hi + 0.1);
-  const observers = observerStatesAu(opts.nights.map((x, i) => ({ stn: x.stn, obsTimeTdbDays: times[i] })), opts.observatories, eph);
+  const observers = observerStatesAu(opts.nights.map((x, i) => ({ stn: x.stn, obsTimeTdbDays: times[i] })), opts.observatories, eph, {
+    ut1MinusUtcSeconds: opts.ut1MinusUtcSeconds ?? 0,
+  });
   const predicted = predictAstrometry({
     epochTdbDays: opts.orbit.epochTdbDays,
     positionAu: opts.orbit.positionAu,
