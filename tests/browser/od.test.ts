@@ -262,6 +262,7 @@ describe('orbit determination in the browser', () => {
     expect(await waitForHeading(page, `Fit #${demoFitId}: HSO-26-U1`)).toBe(`Fit #${demoFitId}: HSO-26-U1`);
     await page.getByTestId('fit-summary').waitFor({ timeout: 600_000 });
     expect(await page.getByRole('button', { name: 'Adopt a fit…' }).count()).toBe(0);
+    expect(await page.getByText(/UT1 − UTC/).count()).toBe(0); // the demo fit takes UT1 as UTC: no mention
 
     // a reviewer may start a fit to check one: gravity only (no term ticked), refused epoch first
     await page.goto(`/objects/${objectId}/fits`);
@@ -288,18 +289,24 @@ describe('orbit determination in the browser', () => {
       }
     }
     await page.getByLabel('HSC sigma (″)').fill('0');
+    // UT1 − UTC beyond the 0.9 s that leap seconds allow is refused at its field (shared/schemas/od.ts message)
+    await page.getByLabel('UT1 − UTC (s)').fill('1.5');
     await page.getByRole('button', { name: 'Queue the fit' }).click();
     await page.getByText('Sigma must be greater than 0 arcsec').waitFor();
+    await page.getByText('UT1 − UTC must be between −0.9 and 0.9 s').waitFor();
+    await page.getByLabel('UT1 − UTC (s)').fill('0.35');
     await screenshot(page, 'od-start-fit-reweight-refused');
     await page.getByLabel('HSC sigma (″)').fill('0.5');
     await page.getByRole('button', { name: 'Queue the fit' }).click();
     await page.waitForURL((u) => /^\/fits\/\d+$/.test(u.pathname) && u.pathname !== `/fits/${demoFitId}`);
     await page.getByText('HSC reweighted to 0.5″').waitFor();
+    await page.getByText('UT1 − UTC 0.35 s').waitFor();
     const ownId = Number(new URL(page.url()).pathname.split('/').pop());
     const own = await finishedFit(page, ownId);
     expect(own.status).toBe('done');
     expect(own.settings.nonGravTerms).toEqual([]);
     expect(own.settings.stationWeights).toEqual([{ stn: 'HSC', sigmaArcsec: 0.5 }]);
+    expect(own.settings.ut1MinusUtcSeconds).toBe(0.35);
     // the engine used it: every HSC residual carries 0.5" (times the nightly de-weighting factor, >= 1)
     const hsc = own.result!.gravityOnly.residuals.filter((r) => r.stn === 'HSC');
     expect(hsc.length).toBeGreaterThan(0);

@@ -65,7 +65,7 @@ export function FitPage() {
             {fit.observationCount} observations · {s.nonGravTerms.length ? `gravity only vs ${s.nonGravTerms.map((t) => t.toUpperCase()).join(', ')} (${s.nonGravLaw})` : 'gravity only'} · epoch{' '}
             {s.epoch ?? 'middle of the arc'} · {s.rejectOutliers ? 'outliers rejected by the χ² rule' : 'no outlier rejection'} · start{' '}
             {s.initialSolutionId ? `from solution #${s.initialSolutionId}` : "by Gauss's method"} · {stationWeightsText(s.stationWeights) ?? 'reported uncertainties'} ·
-            requested {formatUtc(fit.createdAt)}
+            {s.ut1MinusUtcSeconds ? ` UT1 − UTC ${String(s.ut1MinusUtcSeconds).replace('-', '−')} s ·` : ''} requested {formatUtc(fit.createdAt)}
             {fit.createdByName ? ` by ${fit.createdByName}` : ''}
           </p>
         }

@@ -2,10 +2,11 @@
 // non-gravitational terms of the second fit (none = gravity-only fit only), their law, outlier rejection, where
 // the iteration starts (Gauss's method or a stored solution version), the iteration cap, and an optional sigma per
 // observatory among the object's observations (settings.stationWeights: that station's reported uncertainties are
-// replaced). Checked with the shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
+// replaced), and UT1 − UTC for the observer positions (settings.ut1MinusUtcSeconds, empty = 0). Checked with the
+// shared fitSettingsSchema, messages at the fields; a queued fit opens its page.
 import { useState, type FormEvent } from 'react';
 import { Link, useNavigate } from 'react-router';
-import { fitSettingsSchema, MAX_STATION_SIGMA_ARCSEC, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm, type OrbitDeterminationResult } from '../../../shared/schemas/od';
+import { fitSettingsSchema, MAX_STATION_SIGMA_ARCSEC, MAX_UT1_MINUS_UTC_SECONDS, NONGRAV_TERMS, type FitSettingsInput, type NonGravTerm, type OrbitDeterminationResult } from '../../../shared/schemas/od';
 import type { SolutionSummary } from '../../../shared/schemas/objects';
 import { ApiError, fieldErrors } from '../../api/client';
 import { useAstrometry, useCreateFit, useFit } from '../../api/od';
@@ -23,6 +24,8 @@ export function StartFitForm({ objectId, solutions, observationCount, lastFitId 
   const [rejectOutliers, setRejectOutliers] = useState(true);
   const [initial, setInitial] = useState('');
   const [maxIterations, setMaxIterations] = useState('25');
+  /** UT1 − UTC text in seconds ('' = 0, UT1 taken as UTC). */
+  const [ut1MinusUtc, setUt1MinusUtc] = useState('');
   const [local, setLocal] = useState<Record<string, string>>({});
   /** Analyst sigma text per station code ('' = use the reported uncertainties). */
   const [stationSigma, setStationSigma] = useState<Record<string, string>>({});
@@ -50,6 +53,8 @@ export function StartFitForm({ objectId, solutions, observationCount, lastFitId 
       stationWeights: stations
         .filter((st) => (stationSigma[st.stn] ?? '').trim() !== '')
         .map((st) => ({ stn: st.stn, sigmaArcsec: Number((stationSigma[st.stn] ?? '').trim().replace(',', '.')) })),
+      // Empty = 0 (UT1 taken as UTC); a non-number becomes NaN so the schema's message lands at the field.
+      ut1MinusUtcSeconds: ut1MinusUtc.trim() === '' ? 0 : Number(ut1MinusUtc.trim().replace(',', '.').replace('−', '-')),
     };
     const parsed = fitSettingsSchema.safeParse(body);
     if (!parsed.success) {
@@ -110,6 +115,15 @@ export function StartFitForm({ objectId, solutions, observationCount, lastFitId 
           <option value="inverse-square">Inverse square of the distance</option>
         </SelectField>
         <TextField label="Iterations at most" type="number" min={1} max={100} value={maxIterations} onChange={(e) => setMaxIterations(e.target.value)} error={errors.maxIterations} />
+        <TextField
+          label="UT1 − UTC (s)"
+          inputMode="decimal"
+          value={ut1MinusUtc}
+          onChange={(e) => setUt1MinusUtc(e.target.value)}
+          error={errors.ut1MinusUtcSeconds}
+          placeholder="0"
+          hint={`One value for the whole arc, from the IERS bulletins for the arc's dates (within ±${MAX_UT1_MINUS_UTC_SECONDS} s). Empty or 0: UT1 taken as UTC. Matters for very close objects.`}
+        />
         <label className="inline-flex items-center gap-2 self-center text-sm">
           <input type="checkbox" checked={rejectOutliers} onChange={(e) => setRejectOutliers(e.target.checked)} />
           Reject and recover outliers by the χ² rule
