@@ -4,9 +4,11 @@
  * Terrestrial -> celestial, equinox-based form (equivalent to Q R W of the CIO-based form to the level of the
  * models used):
  *   r_GCRS ≈ Pᵀ(t) Nᵀ(t) R3(−GAST) r_ITRS          (polar motion W neglected, ~10 m; METHODS.md §9.4)
- * - Earth rotation angle ERA(UT1), IERS 2010 eq. 5.15 (earthRotationAngleRad), with UT1 ≈ UTC: |UT1 − UTC| ≤ 0.9 s
- *   while leap seconds continue, i.e. ≤ 0.4 km of site position along the equator (METHODS.md §9.4); at 0.05 AU
- *   that is ≤ 0.011" and we accept it (no Bulletin A table is kept).
+ * - Earth rotation angle ERA(UT1), IERS 2010 eq. 5.15 (earthRotationAngleRad). UT1 = UTC + (UT1 − UTC), the latter
+ *   one value per fit given by the analyst from the IERS bulletins (fit setting ut1MinusUtcSeconds, observer.ts),
+ *   0 by default: |UT1 − UTC| ≤ 0.9 s while leap seconds continue, i.e. ≤ 0.4 km of site position along the
+ *   equator (METHODS.md §9.4); at 0.05 AU that is ≤ 0.011", but for an object at 0.003 AU it shifts the fitted
+ *   state by several sigma (tests/unit/od-ut1.test.ts). No Bulletin A table is kept.
  * - GMST = ERA + the IAU 2006 polynomial of IERS 2010 eq. 5.32 (gmstRad); GAST = GMST + Δψ cos ε_A (equation of
  *   the equinoxes; the complementary terms, ≤ 3 mas, are omitted).
  * - Precession P: IAU 2006 (Capitaine, Wallace & Chapront 2003 P03 angles ψ_A, ω_A, χ_A) and nutation N: the five
@@ -15,7 +17,7 @@
  *   memory: the largest omitted one, in l, is 0.071" in Δψ) and together well below 1": that rotates the 6378 km site
  *   vector by less than 3 cm, which is nothing for the direction to an asteroid.
  * - Frame bias (~23 mas between the mean J2000 equator and the ICRS, METHODS.md §2) is neglected: 0.7 m on the site.
- * So the site vector in GCRS is good to the UT1 − UTC term (≤ 0.4 km) and polar motion (~10 m); the precession-
+ * So the site vector in GCRS is good to the UT1 − UTC term (≤ 0.4 km when not given) and polar motion (~10 m); the precession-
  * nutation part is good to centimetres.
  */
 import { AstroTime, Rotation_EQD_EQJ, e_tilt } from 'astronomy-engine';

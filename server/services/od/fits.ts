@@ -56,9 +56,10 @@ function toJob(row: FitJoinRow, withResult: boolean): FitJob {
 }
 
 /** Stored settings; fits queued before stationWeights existed read as "no reweighting" (the schema default). */
+/** Settings as stored; fields added later get their defaults (fits stored before them ran with those defaults). */
 function storedSettings(json: string): FitSettings {
-  const raw = JSON.parse(json) as Partial<FitSettings> & Omit<FitSettings, 'stationWeights'>;
-  return { ...raw, stationWeights: raw.stationWeights ?? [] };
+  const raw = JSON.parse(json) as Partial<FitSettings> & Omit<FitSettings, 'stationWeights' | 'ut1MinusUtcSeconds'>;
+  return { ...raw, stationWeights: raw.stationWeights ?? [], ut1MinusUtcSeconds: raw.ut1MinusUtcSeconds ?? 0 };
 }
 
 function refused(field: string, message: string) {
