@@ -5,7 +5,7 @@ export type { AdesParseResult } from './ades';
 export * from './observatory';
 export * from './earthOrientation';
 export { observerStatesAu, siteGeocentricAu, UnknownObservatoryError } from './observer';
-export type { ObserverState } from './observer';
+export type { ObserverOptions, ObserverState } from './observer';
 export { predictAstrometry } from './predict';
 export type { PredictObservation, PredictOptions, PredictedAstrometry } from './predict';
 export { synthesizeAdesPsv } from './synthetic';
