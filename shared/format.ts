@@ -145,7 +145,7 @@ export function describeImpactProbability(ip: IpInput | null | undefined, rating
       low: null,
       high: null,
       method: 'linear',
-      methodDetail: flagged ? 'linear method NOT validated (±3σ check failed)' : 'Gaussian b-plane integral, no sampling interval',
+      methodDetail: flagged ? 'linear method NOT validated (its linearity checks failed; see the method flags)' : 'Gaussian b-plane integral, no sampling interval',
       odds: ip.linear > 0 ? formatOdds(ip.linear) : null,
     };
   }
