@@ -253,6 +253,35 @@ export const encounterUncertaintySchema = z.object({
   timeSigmaMin: finite,
 });
 
+/**
+ * Original (pre-entry) barycentric orbit of a near-parabolic or unbound fit (engine od/originalOrbit.ts, METHODS.md
+ * §3.5): the fit integrated back (n-body, fitted non-grav) to heliocentric distanceAu, then barycentric two-body
+ * elements (μ = Sun + planets). stop: 'distance' = an original orbit; 'aphelion' = a bound orbit turned back inside
+ * the distance; 'time-limit' = neither within the time limit (the elements are then those at the stop).
+ */
+export const originalOrbitSchema = z.object({
+  /** 1/a, 1/AU (negative = unbound) and its 1-sigma (linear propagation; null without covariance) */
+  inverseSemiMajorAxisPerAu: finite,
+  inverseSemiMajorAxisSigmaPerAu: finite.nullable(),
+  eccentricity: finite,
+  eccentricitySigma: finite.nullable(),
+  /** −(1/a)/σ(1/a): positive = unbound */
+  unboundSignificance: finite.nullable(),
+  /** barycentric v∞, km/s, when 1/a < 0 */
+  vInfinityKmS: finite.nullable(),
+  stop: z.enum(['distance', 'aphelion', 'time-limit']),
+  /** where the elements were taken: time (TDB days since J2000 and TDB calendar), heliocentric distance (AU) */
+  tdbDays: finite,
+  tdbCalendar: z.string(),
+  heliocentricDistanceAu: finite,
+  /** the target distance, AU */
+  distanceAu: finite,
+  yearsBack: finite,
+  /** GM used, AU³/d² */
+  muAu3D2: finite,
+});
+export type OriginalOrbitResult = z.infer<typeof originalOrbitSchema>;
+
 export const fitResultSchema = z.object({
   label: z.enum(['gravity-only', 'non-gravitational']),
   status: z.enum(['converged', 'not-converged', 'failed']),
@@ -280,6 +309,11 @@ export const fitResultSchema = z.object({
   unboundSignificance: finite.nullable(),
   vInfinityKmS: finite.nullable(),
   encounter: encounterUncertaintySchema.nullable(),
+  /**
+   * Original barycentric orbit, computed when the osculating e > 0.98 (null when not computed; absent in fits stored
+   * before the field existed).
+   */
+  originalOrbit: originalOrbitSchema.nullable().optional(),
   /** Residual statistics by observatory (absent in fits stored before the field existed). */
   stations: z.array(stationStatisticsSchema).optional(),
 });

@@ -206,6 +206,27 @@ export function compareFits(
       ` Closest Earth approach ${en.closeApproachUtc.slice(0, 10)}: distance 1-sigma ${fmt(eg.distanceSigmaKm)} km gravity-only, ` +
       `${fmt(en.distanceSigmaKm)} km with ${termsText} (time 1-sigma ${fmt(eg.timeSigmaMin)} and ${fmt(en.timeSigmaMin)} min).`;
   }
+  const og = gravity.originalOrbit;
+  const on = nonGrav.originalOrbit;
+  if (og && on) {
+    // numbers only: the interstellar call is the analyst's (METHODS §3.5 criteria)
+    const invA = (o: NonNullable<FitResult['originalOrbit']>) =>
+      `${o.inverseSemiMajorAxisPerAu.toExponential(4)}${o.inverseSemiMajorAxisSigmaPerAu !== null ? ` ± ${o.inverseSemiMajorAxisSigmaPerAu.toExponential(1)}` : ''}`;
+    const state = (o: NonNullable<FitResult['originalOrbit']>) =>
+      `${o.inverseSemiMajorAxisPerAu < 0 ? 'unbound' : 'bound'}${o.unboundSignificance !== null ? ` at ${fmt(Math.abs(o.unboundSignificance))} sigma` : ''}`;
+    const where = (o: NonNullable<FitResult['originalOrbit']>) =>
+      o.stop === 'distance'
+        ? `at ${fmt(o.distanceAu)} AU, ${o.tdbCalendar.slice(0, 4)}`
+        : `not reached: ${o.stop === 'aphelion' ? 'aphelion' : 'time limit'} at ${fmt(o.heliocentricDistanceAu)} AU, ${o.tdbCalendar.slice(0, 4)}`;
+    const sameWhere = where(og) === where(on);
+    const both = state(og).split(' ')[0] === state(on).split(' ')[0];
+    verdict +=
+      ` Original barycentric orbit (${sameWhere ? where(og) : `${where(og)} gravity-only, ${where(on)} with ${termsText}`}): ` +
+      `1/a = ${invA(og)} /AU gravity-only, ${invA(on)} with ${termsText}: ` +
+      (both && og.unboundSignificance !== null && on.unboundSignificance !== null
+        ? `${state(og).split(' ')[0]} at ${fmt(Math.abs(og.unboundSignificance))} and ${fmt(Math.abs(on.unboundSignificance))} sigma.`
+        : `${state(og)} gravity-only, ${state(on)} with ${termsText}.`);
+  }
   return {
     addedParameters: [...terms],
     deltaChiSquare: delta,

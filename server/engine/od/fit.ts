@@ -38,19 +38,20 @@ import {
   type Residual,
 } from '../../../shared/schemas/od';
 import type { NormalizedOrbit } from '../../../shared/schemas/orbit';
-import { classifyOrbit } from '../classify';
+import { classifyOrbit, eccentricityOf } from '../classify';
 import { C_AU_D, GM_AU3_D2 } from '../constants';
 import { propagate } from '../dynamics/propagate';
 import { defaultEphemeris } from '../dynamics/ephemeris-source';
 import type { NonGravParams, PlanetEphemeris } from '../dynamics/types';
 import { equatorialToEcliptic } from '../frames';
-import { EpochFormatError, parseEpoch, TimeScaleError, tdbJdFromDays } from '../time';
+import { EpochFormatError, formatTdbCalendar, parseEpoch, TimeScaleError, tdbJdFromDays } from '../time';
 import { keplerUniversal } from '../twobody/universal';
 import { stateToElements } from '../twobody/elements';
 import type { Vec3 } from '../vec';
 import { engineVersion } from '../version';
 import { compareFits } from './compare';
 import { encounterUncertainty } from './encounter';
+import { ORIGINAL_ORBIT_MIN_ECCENTRICITY, R_ORIGINAL_AU, originalOrbit } from './originalOrbit';
 import { GaussError, gaussMethod, type GaussSolution } from './gauss';
 import {
   ARCSEC_RAD,
@@ -106,6 +107,8 @@ export interface DetermineOrbitHooks {
   signal?: AbortSignal;
   /** skip the 20-year encounter search (tests of the fit itself; default false) */
   skipEncounter?: boolean;
+  /** skip the original barycentric orbit of near-parabolic/unbound fits (originalOrbit.ts; default false) */
+  skipOriginalOrbit?: boolean;
 }
 
 /** Observations closer in time than this belong to one night (common practice, no source). */
@@ -785,6 +788,46 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
       }
     });
     progress('encounter', fits.length, fits.length);
+  }
+
+  if (!hooks.skipOriginalOrbit) {
+    // only near-parabolic and unbound fits (the stage is reported only when one qualifies)
+    const all = ng ? [grav, ng] : [grav];
+    for (const f of all) f.result.originalOrbit = null;
+    const fits = all.filter((f) => f.result.status !== 'failed' && eccentricityOf(f.result.positionAu, f.result.velocityAuD, GM_AU3_D2.sun) > ORIGINAL_ORBIT_MIN_ECCENTRICITY);
+    fits.forEach((f, k) => {
+      checkAbort();
+      progress('original orbit', k, fits.length);
+      const res = f.result;
+      try {
+        const o = originalOrbit({
+          epochTdbDays,
+          positionAu: res.positionAu,
+          velocityAuD: res.velocityAuD,
+          nonGrav: res.nonGrav,
+          parameters: res.parameters,
+          covariance: res.covariance,
+        });
+        res.originalOrbit = {
+          inverseSemiMajorAxisPerAu: o.inverseSemiMajorAxisPerAu,
+          inverseSemiMajorAxisSigmaPerAu: o.inverseSemiMajorAxisSigmaPerAu,
+          eccentricity: o.eccentricity,
+          eccentricitySigma: o.eccentricitySigma,
+          unboundSignificance: o.unboundSignificance,
+          vInfinityKmS: o.vInfinityKmS,
+          stop: o.stop,
+          tdbDays: o.tdbDays,
+          tdbCalendar: formatTdbCalendar(o.tdbDays, 0),
+          heliocentricDistanceAu: o.heliocentricDistanceAu,
+          distanceAu: R_ORIGINAL_AU,
+          yearsBack: o.yearsBack,
+          muAu3D2: o.muAu3D2,
+        };
+      } catch (err) {
+        warnings.push(`${res.label}: original orbit not computed (${(err as Error).message})`);
+      }
+    });
+    if (fits.length > 0) progress('original orbit', fits.length, fits.length);
   }
 
   // Δχ² needs both models fitted to one set of observations: when the gravity-only outlier passes rejected
