@@ -187,6 +187,16 @@ describe('orbit determination in the browser', () => {
     expect((await comparison.getByTestId('significance').innerText()).trim()).toBe(`${Math.abs(sig) >= 1 ? sig.toFixed(1) : Number(sig.toPrecision(2))} σ`);
     for (const p of result.comparison!.parameterSignificance) expect(await comparison.getByTestId(`significance-${p.term}`).innerText()).toContain(p.signalToNoise.toFixed(1));
     expect(await page.getByTestId('fit-summary').getByTestId('rms-row').innerText()).toContain(result.gravityOnly.rmsArcsec.toFixed(3));
+    // original barycentric orbit rows (both demo fits are hyperbolic; engine od/originalOrbit.ts), as the engine computed them
+    const originalRow = await page.getByTestId('fit-summary').getByTestId('original-inverse-a-row').innerText();
+    for (const f of [result.gravityOnly, result.nonGrav!]) {
+      expect(f.originalOrbit!.stop).toBe('distance');
+      expect(originalRow).toContain(String(Number(f.originalOrbit!.inverseSemiMajorAxisPerAu.toPrecision(6))));
+      expect(await page.getByTestId('fit-summary').getByTestId('original-vinf-row').innerText()).toContain(f.originalOrbit!.vInfinityKmS!.toFixed(3));
+    }
+    expect(originalRow).toContain('unbound at');
+    expect(await page.getByTestId('fit-summary').getByTestId('original-where-row').innerText()).toContain('100 AU from the Sun');
+    expect(await page.getByTestId('original-orbit-note').innerText()).toContain('S ≫ 3');
     // residuals by observatory: one row per station per fit, as the engine computed them
     for (const f of [result.gravityOnly, result.nonGrav!]) {
       for (const st of f.stations!) {

@@ -1,6 +1,7 @@
 // The fit summary: one column per fit (gravity-only, and with non-gravitational terms when requested): status,
 // iterations, normalised and unweighted RMS, chi-square per degree of freedom, observations used, epoch, the
-// elements with 1-sigma, A_k with sigma and S/N, unbound significance and the predicted encounter uncertainty.
+// elements with 1-sigma, A_k with sigma and S/N, unbound significance, the predicted encounter uncertainty and, for
+// near-parabolic and unbound fits, the original barycentric orbit.
 import type { ReactNode } from 'react';
 import type { FitResult, NonGravTerm } from '../../../shared/schemas/od';
 import { CAUTION_TEXT } from '../../components/CautionFooter';
@@ -25,8 +26,36 @@ function valueSigma(v: number | null | undefined, s: number | null | undefined, 
   return `${formatNumber(v, digits)}${s !== null && s !== undefined ? ` ± ${formatNumber(s, 3)}` : ''}`;
 }
 
+// Original (pre-entry) barycentric orbit of near-parabolic and unbound fits (engine od/originalOrbit.ts): shown when a
+// fit has one; '—' for a fit without (osculating e ≤ 0.98 or not computed).
+const originalRows: Row[] = [
+  {
+    label: 'Original 1/a (barycentric) [1/AU]',
+    testId: 'original-inverse-a-row',
+    cells: (f) => {
+      const o = f.originalOrbit;
+      if (!o) return '—';
+      const s = o.unboundSignificance;
+      return `${valueSigma(o.inverseSemiMajorAxisPerAu, o.inverseSemiMajorAxisSigmaPerAu, 6)}${s !== null ? ` (${s > 0 ? 'unbound' : 'bound'} at ${formatNumber(Math.abs(s), 3)}σ)` : ''}`;
+    },
+  },
+  { label: 'Original v∞ [km/s]', testId: 'original-vinf-row', cells: (f) => (f.originalOrbit ? fixed(f.originalOrbit.vInfinityKmS, 3) : '—') },
+  {
+    label: 'Original orbit taken at',
+    testId: 'original-where-row',
+    cells: (f) => {
+      const o = f.originalOrbit;
+      if (!o) return '—';
+      const when = `${o.tdbCalendar.slice(0, 10)} TDB, ${o.yearsBack.toFixed(1)} years back`;
+      if (o.stop === 'distance') return `${formatNumber(o.distanceAu, 4)} AU from the Sun, ${when}`;
+      return `not reached ${formatNumber(o.distanceAu, 4)} AU: ${o.stop === 'aphelion' ? 'bound, aphelion' : 'time limit'} at ${formatNumber(o.heliocentricDistanceAu, 4)} AU, ${when}`;
+    },
+  },
+];
+
 export function FitSummary({ fits }: { fits: FitResult[] }) {
   const terms = [...new Set(fits.flatMap((f) => f.parameters.filter((p): p is NonGravTerm => p === 'a1' || p === 'a2' || p === 'a3')))];
+  const hasOriginal = fits.some((f) => f.originalOrbit);
   const rows: Row[] = [
     { label: 'Status', testId: 'fit-status-row', cells: (f) => <span className={f.status === 'converged' ? 'text-ok-700' : 'font-medium text-danger-700'}>{STATUS_TEXT[f.status]}{f.message ? ` · ${f.message}` : ''}</span> },
     { label: 'Iterations', cells: (f) => f.iterations.length },
@@ -61,6 +90,7 @@ export function FitSummary({ fits }: { fits: FitResult[] }) {
     },
     { label: 'Position 1σ there, largest axis [km]', cells: (f) => (f.encounter ? formatNumber(f.encounter.positionSigmaMaxKm, 3) : '—') },
     { label: 'Approach time 1σ [min]', cells: (f) => (f.encounter ? formatNumber(f.encounter.timeSigmaMin, 3) : '—') },
+    ...(hasOriginal ? originalRows : []),
   ];
   return (
     <section aria-labelledby="fit-summary-heading">
@@ -87,6 +117,14 @@ export function FitSummary({ fits }: { fits: FitResult[] }) {
         Elements: heliocentric, J2000 ecliptic, osculating at the epoch; 1σ from the fit covariance. Encounter figures are the linear propagation of that
         covariance. {CAUTION_TEXT}
       </p>
+      {hasOriginal && (
+        <p className="mt-1 text-xs text-ink-soft" data-testid="original-orbit-note">
+          Original orbit: the fit integrated back (planets and the fitted non-gravitational terms) to the distance shown, as barycentric two-body
+          elements (GM of the Sun and planets); S = −(1/a)/σ. An interstellar candidate needs an original orbit hyperbolic at high
+          significance (S ≫ 3) in both fits and under other outlier treatment, and v∞ well above the ≲0.3–1 km/s that planetary perturbations
+          and outgassing give Oort-cloud comets. The judgement is the analyst&apos;s.
+        </p>
+      )}
     </section>
   );
 }
