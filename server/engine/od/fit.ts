@@ -766,6 +766,18 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
     if (ng.result.status !== 'converged') warnings.push(`non-gravitational fit ${ng.result.status}: ${ng.result.message}`);
   }
 
+  /** Closest Earth approach in the 20 years after the arc, with its linear uncertainty, for one fit. */
+  const encounterOf = (res: FitResult, covariance: number[][]) =>
+    encounterUncertainty({
+      epochTdbDays,
+      positionAu: res.positionAu,
+      velocityAuD: res.velocityAuD,
+      nonGrav: res.nonGrav,
+      parameters: res.parameters,
+      covariance,
+      arcEndTdbDays: last.obsTimeTdbDays,
+    });
+
   if (!hooks.skipEncounter) {
     const fits = ng ? [grav, ng] : [grav];
     fits.forEach((f, k) => {
@@ -774,15 +786,7 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
       const res = f.result;
       if (!res.covariance || res.status === 'failed') return;
       try {
-        res.encounter = encounterUncertainty({
-          epochTdbDays,
-          positionAu: res.positionAu,
-          velocityAuD: res.velocityAuD,
-          nonGrav: res.nonGrav,
-          parameters: res.parameters,
-          covariance: res.covariance,
-          arcEndTdbDays: last.obsTimeTdbDays,
-        });
+        res.encounter = encounterOf(res, res.covariance);
       } catch (err) {
         warnings.push(`${res.label}: encounter uncertainty not computed (${(err as Error).message})`);
       }
@@ -844,15 +848,7 @@ export function determineOrbit(input: DetermineOrbitInput, hooks: DetermineOrbit
         sameSet = { plainChi2: refit.plainChi2, used: refit.used, result: refit.result };
         if (!hooks.skipEncounter && refit.result.covariance) {
           try {
-            refit.result.encounter = encounterUncertainty({
-              epochTdbDays,
-              positionAu: refit.result.positionAu,
-              velocityAuD: refit.result.velocityAuD,
-              nonGrav: null,
-              parameters: refit.result.parameters,
-              covariance: refit.result.covariance,
-              arcEndTdbDays: last.obsTimeTdbDays,
-            });
+            refit.result.encounter = encounterOf(refit.result, refit.result.covariance);
           } catch (err) {
             warnings.push(`gravity-only fit on the non-gravitational fit's observations: encounter uncertainty not computed (${(err as Error).message})`);
           }
