@@ -54,6 +54,7 @@ export const ROUTES = [
 
   { method: 'GET', path: '/api/observatories', action: 'read', subject: 'Observatory', summary: 'The office\'s observatory table, with how many observations use each code' },
   { method: 'POST', path: '/api/observatories', action: 'create', subject: 'Observatory', summary: 'Add an observatory (code, name, longitude, parallax constants or latitude and height; 201)' },
+  { method: 'POST', path: '/api/observatories/import', action: 'create', subject: 'Observatory', summary: 'Import a file of observatories in the CLI\'s JSON form, all or nothing (mode add-only or replace)' },
   { method: 'PUT', path: '/api/observatories/:code', action: 'update', subject: 'Observatory', summary: 'Replace an observatory\'s name and position (the code stays)' },
   { method: 'DELETE', path: '/api/observatories/:code', action: 'delete', subject: 'Observatory', summary: 'Remove an observatory no observation uses (409 when used)' },
 

@@ -21,6 +21,50 @@ export const observatoryRowSchema = z.object({
 export type ObservatoryRow = z.infer<typeof observatoryRowSchema>;
 export const saveObservatoryBodySchema = observatorySchema;
 
+// --- POST /api/observatories/import: a file in the CLI's form ({"observatories": [...]}, shared/schemas/od.ts
+// observatoryFileSchema), all or nothing. Multipart: field `file` plus an optional `mode` field.
+export const OBSERVATORY_IMPORT_MODES = ['add-only', 'replace'] as const;
+export type ObservatoryImportMode = (typeof OBSERVATORY_IMPORT_MODES)[number];
+/** Largest observatory file accepted (bytes of text). */
+export const MAX_OBSERVATORY_FILE_BYTES = 900_000;
+export const observatoryImportModeSchema = z.enum(OBSERVATORY_IMPORT_MODES).default('add-only');
+/** POST body when not multipart. `mode`: codes already in the table are refused (add-only) or replaced like PUT. */
+export const importObservatoriesBodySchema = z.strictObject({
+  fileName: z.string().trim().max(200).optional(),
+  text: z.string().min(1, 'The file is empty').max(MAX_OBSERVATORY_FILE_BYTES, 'The file is too large (900 kB at most)'),
+  mode: observatoryImportModeSchema,
+});
+export type ImportObservatoriesBody = z.input<typeof importObservatoriesBodySchema>;
+/** The other fields of a multipart import. */
+export const importObservatoriesFieldsSchema = z.object({ mode: observatoryImportModeSchema });
+
+/**
+ * One problem of a refused file (422 unprocessable, details.issues): `entry` is 1-based in the file's
+ * `observatories` array (null for the file as a whole), `code` the entry's code as written (when it has one),
+ * `field` the entry's field (null for the whole entry), `kind` 'exists' for a code already in the table (add-only).
+ */
+export const observatoryImportIssueSchema = z.object({
+  entry: z.number().int().positive().nullable(),
+  code: z.string().nullable(),
+  field: z.string().nullable(),
+  kind: z.enum(['invalid', 'duplicate', 'exists']),
+  message: z.string(),
+});
+export type ObservatoryImportIssue = z.infer<typeof observatoryImportIssueSchema>;
+
+/** 200 answer: codes added, replaced (stored position or name differed) and unchanged (identical, not rewritten). */
+export const importObservatoriesResultSchema = z.object({
+  fileName: z.string().nullable(),
+  mode: z.enum(OBSERVATORY_IMPORT_MODES),
+  added: z.number().int(),
+  replaced: z.number().int(),
+  unchanged: z.number().int(),
+  addedCodes: z.array(z.string()),
+  replacedCodes: z.array(z.string()),
+  unchangedCodes: z.array(z.string()),
+});
+export type ImportObservatoriesResult = z.infer<typeof importObservatoriesResultSchema>;
+
 // --- astrometry: GET/POST /api/objects/:id/astrometry, PATCH /api/objects/:id/astrometry/:obsId ---------------
 /** POST body when not multipart (multipart: field `file`). */
 export const uploadAstrometryBodySchema = z.strictObject({

@@ -3,7 +3,15 @@
 // finishes; adopting a fit adds a solution version, so the object's versions are refreshed.
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { AdesIssue, FitSettingsInput, ObservatoryInput } from '../../shared/schemas/od';
-import type { AdoptFitBody, AstrometryList, FitJob, ObservatoryRow, UploadAstrometryResult } from '../../shared/schemas/odApi';
+import type {
+  AdoptFitBody,
+  AstrometryList,
+  FitJob,
+  ImportObservatoriesResult,
+  ObservatoryImportMode,
+  ObservatoryRow,
+  UploadAstrometryResult,
+} from '../../shared/schemas/odApi';
 import { FINISHED_RUN_STATUSES } from '../../shared/schemas/runs';
 import { api, ApiError, postForm } from './client';
 import { objectKeys } from './objects';
@@ -40,6 +48,21 @@ export function useSaveObservatory() {
     /** `code` of the row being edited, or null to add one. */
     mutationFn: ({ code, body }: { code: string | null; body: ObservatoryInput }) =>
       code === null ? api<ObservatoryRow>('POST', '/api/observatories', body) : api<ObservatoryRow>('PUT', `/api/observatories/${encodeURIComponent(code)}`, body),
+    onSuccess: () => qc.invalidateQueries({ queryKey: odKeys.observatories }),
+  });
+}
+
+/** Import a file of observatories: a chosen file as multipart (field `file`, plus `mode`), pasted text as JSON. */
+export function useImportObservatories() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ source, mode }: { source: { kind: 'file'; file: File } | { kind: 'text'; text: string }; mode: ObservatoryImportMode }) => {
+      if (source.kind === 'text') return api<ImportObservatoriesResult>('POST', '/api/observatories/import', { text: source.text, mode });
+      const form = new FormData();
+      form.append('mode', mode);
+      form.append('file', source.file, source.file.name);
+      return postForm<ImportObservatoriesResult>('/api/observatories/import', form);
+    },
     onSuccess: () => qc.invalidateQueries({ queryKey: odKeys.observatories }),
   });
 }

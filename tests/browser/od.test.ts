@@ -399,6 +399,38 @@ describe('orbit determination in the browser', () => {
     await context.close();
   }, 120_000);
 
+  // Import a file (the CLI's JSON form, README): a pasted file with one bad entry is refused by entry and field and
+  // stores nothing; corrected, it adds both rows and the list refreshes. Limits: shared/schemas/od.ts messages.
+  it('an admin imports a small pasted observatory file: a bad entry is named, then the corrected file adds the rows', async () => {
+    const { context, page, errors } = await signedInPage(browser, server.url, 'admin', { expectedStatuses: [401, 422] });
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Observatories', exact: true }).click();
+    expect(await waitForHeading(page, 'Observatories')).toBe('Observatories');
+    await page.getByTestId('observatory-table').waitFor();
+    const card = page.getByRole('region', { name: 'Import a file' });
+    const entries = [
+      { code: 'HSV', name: 'Import test north dome (invented)', longitudeDeg: 12.25, geodeticLatitudeDeg: 60.1, heightM: 90 },
+      { code: 'HSW', name: 'Import test south dome (invented)', longitudeDeg: 12.5, rhoCosPhi: 1.5, rhoSinPhi: 0.86 },
+    ];
+    await card.getByLabel('…or paste the text').fill(JSON.stringify({ observatories: entries }));
+    await card.getByRole('button', { name: 'Import the observatories' }).click();
+    const issues = page.getByTestId('observatory-import-issues');
+    await issues.waitFor();
+    expect(await issues.locator('tbody tr').count()).toBe(1);
+    expect(await issues.locator('tbody tr').first().innerText()).toMatch(/entry 2\s+HSW\s+rhoCosPhi\s+rho cos phi' must be in \[0, 1\.001\]/);
+    expect(await page.getByTestId('observatory-row-HSV').count()).toBe(0);
+
+    entries[1].rhoCosPhi = 0.5;
+    await card.getByLabel('…or paste the text').fill(JSON.stringify({ observatories: entries }));
+    await card.getByRole('button', { name: 'Import the observatories' }).click();
+    await page.getByText('Pasted text: 2 added, 0 replaced').waitFor();
+    expect(await page.getByTestId('observatory-row-HSV').innerText()).toMatch(/Import test north dome \(invented\)\s+12\.25°\s+lat 60\.1° · 90 m\s+0/);
+    expect(await page.getByTestId('observatory-row-HSW').innerText()).toMatch(/12\.5°\s+ρ cos φ′ 0\.5 · ρ sin φ′ 0\.86/);
+    expect(await page.getByTestId('observatory-import-refused').count()).toBe(0);
+    await screenshot(page, 'od-admin-observatory-import');
+    expect(errors).toEqual([]);
+    await context.close();
+  }, 120_000);
+
   it('communications staff see none of the orbit-determination areas', async () => {
     const { context, page, errors } = await signedInPage(browser, server.url, 'communications', { expectedStatuses: [401, 403] });
     const nav = (await page.getByRole('navigation', { name: 'Main' }).getByRole('link').allTextContents()).map((s) => s.trim());

@@ -1,6 +1,6 @@
 // The office's observatory table (codes used in the ADES stn field; METHODS.md §9.4). Analysts and reviewers read
-// it; admins add, edit and delete. An observatory that observations use cannot be deleted (the server answers
-// 409 and its message is shown).
+// it; admins add, edit, delete and import a file in the CLI's form (ObservatoryImport). An observatory that
+// observations use cannot be deleted (the server answers 409 and its message is shown).
 import { useState } from 'react';
 import type { ObservatoryRow } from '../../../shared/schemas/odApi';
 import { useDeleteObservatory, useObservatories } from '../../api/od';
@@ -10,6 +10,7 @@ import { Button, Notice, PageHeader } from '../../components/ui';
 import { QueryTable } from '../../components/QueryTable';
 import { formatUtc } from '../objects/format';
 import { ObservatoryForm } from './ObservatoryForm';
+import { ObservatoryImport } from './ObservatoryImport';
 
 function site(o: ObservatoryRow): string {
   if (o.rhoCosPhi !== null && o.rhoSinPhi !== null) return `ρ cos φ′ ${o.rhoCosPhi} · ρ sin φ′ ${o.rhoSinPhi}`;
@@ -54,6 +55,7 @@ export function ObservatoriesPage() {
             onCancel={() => setEditing(null)}
           />
         )}
+        {canManage && <ObservatoryImport />}
         <section aria-labelledby="observatory-list-heading">
           <h2 id="observatory-list-heading" className="mb-3 text-lg font-semibold">The office's observatories</h2>
           <QueryTable
