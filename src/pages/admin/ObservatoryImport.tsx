@@ -2,10 +2,11 @@
 // README) chosen or pasted, with an explicit choice for codes already in the table (refuse them, or replace their
 // name and position). A refused file is listed entry by entry and field by field; nothing of it is stored. The
 // list below refreshes on success (the hook invalidates the observatories query).
-import { useRef, useState, type FormEvent } from 'react';
+import { useState, type FormEvent } from 'react';
 import { MAX_OBSERVATORY_FILE_BYTES, observatoryImportIssueSchema, type ImportObservatoriesResult, type ObservatoryImportIssue, type ObservatoryImportMode } from '../../../shared/schemas/odApi';
 import { ApiError } from '../../api/client';
 import { useImportObservatories } from '../../api/od';
+import { FileOrPasteFields, useFileOrPaste } from '../../components/FileOrPaste';
 import { Button, Card, Notice, errorMessage } from '../../components/ui';
 
 /** The per-entry issues of a refused file (422, details.issues); [] for any other error. */
@@ -29,9 +30,7 @@ function summary(r: ImportObservatoriesResult): string {
 
 export function ObservatoryImport() {
   const importer = useImportObservatories();
-  const fileRef = useRef<HTMLInputElement>(null);
-  const [pasted, setPasted] = useState('');
-  const [fileName, setFileName] = useState<string | null>(null);
+  const input = useFileOrPaste();
   const [mode, setMode] = useState<ObservatoryImportMode>('add-only');
   const [localError, setLocalError] = useState<string | null>(null);
   const [done, setDone] = useState<{ result: ImportObservatoriesResult; name: string } | null>(null);
@@ -41,24 +40,22 @@ export function ObservatoryImport() {
     e.preventDefault();
     setLocalError(null);
     setDone(null);
-    const file = fileRef.current?.files?.[0] ?? null;
-    if (file && file.size > MAX_OBSERVATORY_FILE_BYTES) {
-      setLocalError(`${file.name} is ${Math.round(file.size / 1000)} kB: ${MAX_OBSERVATORY_FILE_BYTES / 1000} kB at most.`);
+    const taken = input.take(
+      MAX_OBSERVATORY_FILE_BYTES,
+      (file) => `${file.name} is ${Math.round(file.size / 1000)} kB: ${MAX_OBSERVATORY_FILE_BYTES / 1000} kB at most.`,
+      'Choose an observatory file or paste its text.',
+      'Pasted text',
+    );
+    if ('error' in taken) {
+      setLocalError(taken.error);
       return;
     }
-    if (!file && !pasted.trim()) {
-      setLocalError('Choose an observatory file or paste its text.');
-      return;
-    }
-    const name = file ? file.name : 'Pasted text';
     importer.mutate(
-      { source: file ? { kind: 'file', file } : { kind: 'text', text: pasted }, mode },
+      { source: taken.source, mode },
       {
         onSuccess: (result) => {
-          setDone({ result, name });
-          setPasted('');
-          setFileName(null);
-          if (fileRef.current) fileRef.current.value = '';
+          setDone({ result, name: taken.name });
+          input.reset();
         },
       },
     );
@@ -72,29 +69,7 @@ export function ObservatoryImport() {
         A file with any bad entry is refused whole, with the entry numbers.
       </p>
       <form onSubmit={submit} className="space-y-4" noValidate>
-        <div>
-          <label htmlFor="observatory-file" className="mb-1 block text-sm font-medium">Observatory file (JSON)</label>
-          <input
-            id="observatory-file"
-            ref={fileRef}
-            type="file"
-            accept=".json,application/json,text/plain"
-            className="block text-sm"
-            onChange={(e) => setFileName(e.target.files?.[0]?.name ?? null)}
-          />
-        </div>
-        <div>
-          <label htmlFor="observatory-file-text" className="mb-1 block text-sm font-medium">…or paste the text</label>
-          <textarea
-            id="observatory-file-text"
-            rows={4}
-            disabled={fileName !== null}
-            className="block w-full rounded-md border border-rule p-2 font-mono text-xs disabled:bg-paper"
-            value={pasted}
-            onChange={(e) => setPasted(e.target.value)}
-            placeholder={'{"observatories": [ … ]}'}
-          />
-        </div>
+        <FileOrPasteFields state={input} id="observatory-file" fileLabel="Observatory file (JSON)" accept=".json,application/json,text/plain" placeholder={'{"observatories": [ … ]}'} />
         <fieldset>
           <legend className="mb-1 text-sm font-medium">When a site is already in the table</legend>
           <label className="flex items-center gap-2 text-sm">

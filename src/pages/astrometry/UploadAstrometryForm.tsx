@@ -1,17 +1,16 @@
 // Upload an IAU ADES PSV file (or pasted text) of optical astrometry for one object. A refused file shows every
 // issue the server found, by line number and field; nothing of it is stored. An accepted file reports how many
 // observations were added and which lines were skipped as already stored.
-import { useRef, useState, type FormEvent } from 'react';
+import { useState, type FormEvent } from 'react';
 import type { UploadAstrometryResult } from '../../../shared/schemas/odApi';
 import { astrometryIssues, useUploadAstrometry } from '../../api/od';
+import { FileOrPasteFields, useFileOrPaste } from '../../components/FileOrPaste';
 import { Button, Card, Notice, errorMessage } from '../../components/ui';
 import { formatObsTime } from './format';
 
 export function UploadAstrometryForm({ objectId }: { objectId: number }) {
   const upload = useUploadAstrometry(objectId);
-  const fileRef = useRef<HTMLInputElement>(null);
-  const [pasted, setPasted] = useState('');
-  const [fileName, setFileName] = useState<string | null>(null);
+  const input = useFileOrPaste();
   const [localError, setLocalError] = useState<string | null>(null);
   const [done, setDone] = useState<{ result: UploadAstrometryResult; name: string } | null>(null);
   const issues = astrometryIssues(upload.error);
@@ -20,22 +19,15 @@ export function UploadAstrometryForm({ objectId }: { objectId: number }) {
     e.preventDefault();
     setLocalError(null);
     setDone(null);
-    const file = fileRef.current?.files?.[0] ?? null;
-    if (file && file.size > 5_000_000) {
-      setLocalError(`${file.name} is ${(file.size / 1e6).toFixed(1)} MB: 5 MB at most.`);
+    const taken = input.take(5_000_000, (file) => `${file.name} is ${(file.size / 1e6).toFixed(1)} MB: 5 MB at most.`, 'Choose an ADES PSV file or paste its text.', 'pasted text');
+    if ('error' in taken) {
+      setLocalError(taken.error);
       return;
     }
-    if (!file && !pasted.trim()) {
-      setLocalError('Choose an ADES PSV file or paste its text.');
-      return;
-    }
-    const name = file ? file.name : 'pasted text';
-    upload.mutate(file ? { kind: 'file', file } : { kind: 'text', text: pasted }, {
+    upload.mutate(taken.source, {
       onSuccess: (result) => {
-        setDone({ result, name });
-        setPasted('');
-        setFileName(null);
-        if (fileRef.current) fileRef.current.value = '';
+        setDone({ result, name: taken.name });
+        input.reset();
       },
     });
   };
@@ -48,29 +40,7 @@ export function UploadAstrometryForm({ objectId }: { objectId: number }) {
         (same station and time) are skipped. A file with any bad line is refused whole, with the line numbers.
       </p>
       <form onSubmit={submit} className="space-y-4" noValidate>
-        <div>
-          <label htmlFor="ades-file" className="mb-1 block text-sm font-medium">ADES PSV file</label>
-          <input
-            id="ades-file"
-            ref={fileRef}
-            type="file"
-            accept=".psv,.txt,text/plain"
-            className="block text-sm"
-            onChange={(e) => setFileName(e.target.files?.[0]?.name ?? null)}
-          />
-        </div>
-        <div>
-          <label htmlFor="ades-text" className="mb-1 block text-sm font-medium">…or paste the text</label>
-          <textarea
-            id="ades-text"
-            rows={4}
-            disabled={fileName !== null}
-            className="block w-full rounded-md border border-rule p-2 font-mono text-xs disabled:bg-paper"
-            value={pasted}
-            onChange={(e) => setPasted(e.target.value)}
-            placeholder={'# version=2022\n# observatory\n! mpcCode …'}
-          />
-        </div>
+        <FileOrPasteFields state={input} id="ades-file" fileLabel="ADES PSV file" accept=".psv,.txt,text/plain" placeholder={'# version=2022\n# observatory\n! mpcCode …'} />
         {localError && <Notice tone="error">{localError}</Notice>}
         <Button type="submit" busy={upload.isPending}>Upload the astrometry</Button>
       </form>
